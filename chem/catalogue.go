@@ -1,0 +1,220 @@
+package chem
+
+import (
+	"fmt"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Catalogue is the set of fatty acids the service knows, with lookup by
+// canonical ID and by name. It is immutable after construction and safe for
+// concurrent use.
+type Catalogue struct {
+	acids  []*FattyAcid
+	byID   map[string]*FattyAcid
+	byName map[string]*FattyAcid
+	// groups lists the entries per "C:D" (and hydroxy flag) shorthand.
+	groups map[groupKey][]*FattyAcid
+}
+
+type groupKey struct {
+	carbons, d int
+	hydroxy    bool
+}
+
+// acidDef is one row of the built-in catalogue. bonds uses the canonical
+// notation ("c9,c12"); "t" alone marks a lumped trans entry.
+type acidDef struct {
+	carbons    int
+	d          int
+	bonds      string
+	hydroxy    int
+	common     string
+	systematic string
+	names      []string
+	preferred  bool
+}
+
+// builtinAcids is the reference list. Structures follow IUPAC-IUBMB lipid
+// nomenclature; names are the trade's usual trivial names.
+var builtinAcids = []acidDef{
+	// Saturated, C4–C24 including the odd chains GC profiles report.
+	{4, 0, "", 0, "butyric", "butanoic acid", nil, true},
+	{6, 0, "", 0, "caproic", "hexanoic acid", nil, true},
+	{8, 0, "", 0, "caprylic", "octanoic acid", nil, true},
+	{10, 0, "", 0, "capric", "decanoic acid", nil, true},
+	{11, 0, "", 0, "undecylic", "undecanoic acid", []string{"undecanoic"}, true},
+	{12, 0, "", 0, "lauric", "dodecanoic acid", nil, true},
+	{13, 0, "", 0, "tridecylic", "tridecanoic acid", []string{"tridecanoic"}, true},
+	{14, 0, "", 0, "myristic", "tetradecanoic acid", nil, true},
+	{15, 0, "", 0, "pentadecylic", "pentadecanoic acid", []string{"pentadecanoic"}, true},
+	{16, 0, "", 0, "palmitic", "hexadecanoic acid", nil, true},
+	{17, 0, "", 0, "margaric", "heptadecanoic acid", []string{"heptadecanoic"}, true},
+	{18, 0, "", 0, "stearic", "octadecanoic acid", nil, true},
+	{19, 0, "", 0, "nonadecylic", "nonadecanoic acid", []string{"nonadecanoic"}, true},
+	{20, 0, "", 0, "arachidic", "icosanoic acid", []string{"eicosanoic"}, true},
+	{21, 0, "", 0, "heneicosylic", "henicosanoic acid", []string{"heneicosanoic"}, true},
+	{22, 0, "", 0, "behenic", "docosanoic acid", nil, true},
+	{23, 0, "", 0, "tricosylic", "tricosanoic acid", []string{"tricosanoic"}, true},
+	{24, 0, "", 0, "lignoceric", "tetracosanoic acid", nil, true},
+
+	// Monoenes.
+	{10, 1, "c9", 0, "caproleic", "(9Z)-dec-9-enoic acid", nil, true},
+	{14, 1, "c9", 0, "myristoleic", "(9Z)-tetradec-9-enoic acid", nil, true},
+	{16, 1, "c7", 0, "hypogeic", "(7Z)-hexadec-7-enoic acid", nil, false},
+	{16, 1, "c9", 0, "palmitoleic", "(9Z)-hexadec-9-enoic acid", nil, true},
+	{16, 1, "t9", 0, "palmitelaidic", "(9E)-hexadec-9-enoic acid", nil, false},
+	{16, 1, "t", 0, "", "trans-hexadecenoic acids, positions not resolved", []string{"trans-palmitoleic"}, false},
+	{17, 1, "c10", 0, "", "(10Z)-heptadec-10-enoic acid", []string{"heptadecenoic", "margaroleic"}, true},
+	{18, 1, "c6", 0, "petroselinic", "(6Z)-octadec-6-enoic acid", nil, false},
+	{18, 1, "c9", 0, "oleic", "(9Z)-octadec-9-enoic acid", nil, true},
+	{18, 1, "t9", 0, "elaidic", "(9E)-octadec-9-enoic acid", nil, false},
+	{18, 1, "c11", 0, "cis-vaccenic", "(11Z)-octadec-11-enoic acid", []string{"asclepic"}, false},
+	{18, 1, "t11", 0, "vaccenic", "(11E)-octadec-11-enoic acid", []string{"trans-vaccenic"}, false},
+	{18, 1, "t", 0, "", "trans-octadecenoic acids, positions not resolved", []string{"trans-oleic", "total trans 18:1"}, false},
+	{20, 1, "c9", 0, "gadoleic", "(9Z)-icos-9-enoic acid", nil, false},
+	{20, 1, "c11", 0, "gondoic", "(11Z)-icos-11-enoic acid", []string{"eicosenoic"}, true},
+	{22, 1, "c11", 0, "cetoleic", "(11Z)-docos-11-enoic acid", nil, false},
+	{22, 1, "c13", 0, "erucic", "(13Z)-docos-13-enoic acid", nil, true},
+	{24, 1, "c15", 0, "nervonic", "(15Z)-tetracos-15-enoic acid", nil, true},
+	{18, 1, "c9", 12, "ricinoleic", "(9Z,12R)-12-hydroxyoctadec-9-enoic acid", nil, true},
+
+	// Dienes.
+	{18, 2, "c9,c12", 0, "linoleic", "(9Z,12Z)-octadeca-9,12-dienoic acid", nil, true},
+	{18, 2, "t9,t12", 0, "linoelaidic", "(9E,12E)-octadeca-9,12-dienoic acid", nil, false},
+	{18, 2, "c9,t12", 0, "", "(9Z,12E)-octadeca-9,12-dienoic acid", nil, false},
+	{18, 2, "t9,c12", 0, "", "(9E,12Z)-octadeca-9,12-dienoic acid", nil, false},
+	{18, 2, "c9,t11", 0, "rumenic", "(9Z,11E)-octadeca-9,11-dienoic acid", nil, false},
+	{18, 2, "t10,c12", 0, "", "(10E,12Z)-octadeca-10,12-dienoic acid", nil, false},
+	{18, 2, "t", 0, "", "trans-octadecadienoic acids, positions not resolved", []string{"trans-linoleic"}, false},
+	{20, 2, "c11,c14", 0, "", "(11Z,14Z)-icosa-11,14-dienoic acid", []string{"eicosadienoic"}, true},
+	{22, 2, "c13,c16", 0, "", "(13Z,16Z)-docosa-13,16-dienoic acid", []string{"docosadienoic"}, true},
+
+	// Trienes and higher.
+	{18, 3, "c6,c9,c12", 0, "gamma-linolenic", "(6Z,9Z,12Z)-octadeca-6,9,12-trienoic acid", []string{"gla"}, false},
+	{18, 3, "c9,c12,c15", 0, "alpha-linolenic", "(9Z,12Z,15Z)-octadeca-9,12,15-trienoic acid", []string{"linolenic", "ala"}, true},
+	{18, 3, "t", 0, "", "trans-octadecatrienoic acids, positions not resolved", []string{"trans-linolenic"}, false},
+	{20, 3, "c8,c11,c14", 0, "dihomo-gamma-linolenic", "(8Z,11Z,14Z)-icosa-8,11,14-trienoic acid", []string{"dgla"}, false},
+	{20, 3, "c11,c14,c17", 0, "", "(11Z,14Z,17Z)-icosa-11,14,17-trienoic acid", []string{"eicosatrienoic"}, false},
+	{18, 4, "c6,c9,c12,c15", 0, "stearidonic", "(6Z,9Z,12Z,15Z)-octadeca-6,9,12,15-tetraenoic acid", []string{"sda"}, true},
+	{20, 4, "c5,c8,c11,c14", 0, "arachidonic", "(5Z,8Z,11Z,14Z)-icosa-5,8,11,14-tetraenoic acid", []string{"ara", "aa"}, true},
+	{20, 4, "c8,c11,c14,c17", 0, "", "(8Z,11Z,14Z,17Z)-icosa-8,11,14,17-tetraenoic acid", []string{"eicosatetraenoic"}, false},
+	{20, 5, "c5,c8,c11,c14,c17", 0, "eicosapentaenoic", "(5Z,8Z,11Z,14Z,17Z)-icosa-5,8,11,14,17-pentaenoic acid", []string{"epa", "timnodonic"}, true},
+	{22, 4, "c7,c10,c13,c16", 0, "adrenic", "(7Z,10Z,13Z,16Z)-docosa-7,10,13,16-tetraenoic acid", nil, true},
+	{22, 5, "c4,c7,c10,c13,c16", 0, "osbond", "(4Z,7Z,10Z,13Z,16Z)-docosa-4,7,10,13,16-pentaenoic acid", []string{"dpa n-6"}, false},
+	{22, 5, "c7,c10,c13,c16,c19", 0, "clupanodonic", "(7Z,10Z,13Z,16Z,19Z)-docosa-7,10,13,16,19-pentaenoic acid", []string{"dpa", "docosapentaenoic"}, false},
+	{22, 6, "c4,c7,c10,c13,c16,c19", 0, "docosahexaenoic", "(4Z,7Z,10Z,13Z,16Z,19Z)-docosa-4,7,10,13,16,19-hexaenoic acid", []string{"dha", "cervonic"}, true},
+}
+
+// NewCatalogue builds the built-in catalogue. It panics only if the built-in
+// table itself is inconsistent, which the tests rule out.
+func NewCatalogue() *Catalogue {
+	c := &Catalogue{
+		byID:   make(map[string]*FattyAcid),
+		byName: make(map[string]*FattyAcid),
+		groups: make(map[groupKey][]*FattyAcid),
+	}
+	for _, def := range builtinAcids {
+		a, err := def.build()
+		if err != nil {
+			panic(err)
+		}
+		if _, dup := c.byID[strings.ToLower(a.ID)]; dup {
+			panic("chem: duplicate catalogue id " + a.ID)
+		}
+		c.acids = append(c.acids, a)
+		c.byID[strings.ToLower(a.ID)] = a
+		k := groupKey{a.Carbons, a.DoubleBondCount, a.HydroxyPosition > 0}
+		c.groups[k] = append(c.groups[k], a)
+		for _, n := range a.allNames() {
+			if other, dup := c.byName[n]; dup && other != a {
+				panic("chem: name " + n + " names two acids")
+			}
+			c.byName[n] = a
+		}
+	}
+	return c
+}
+
+func (d acidDef) build() (*FattyAcid, error) {
+	a := &FattyAcid{
+		Carbons:         d.carbons,
+		DoubleBondCount: d.d,
+		HydroxyPosition: d.hydroxy,
+		CommonName:      d.common,
+		SystematicName:  d.systematic,
+		Preferred:       d.preferred,
+	}
+	switch {
+	case d.bonds == "t":
+		a.LumpedGeometry = Trans
+	case d.bonds != "":
+		for _, part := range strings.Split(d.bonds, ",") {
+			g := Cis
+			if part[0] == 't' {
+				g = Trans
+			}
+			pos, err := strconv.Atoi(part[1:])
+			if err != nil {
+				return nil, fmt.Errorf("chem: bad bond %q in catalogue", part)
+			}
+			a.Bonds = append(a.Bonds, DoubleBond{Position: pos, Geometry: g})
+		}
+		if len(a.Bonds) != d.d {
+			return nil, fmt.Errorf("chem: %d:%d lists %d bonds", d.carbons, d.d, len(a.Bonds))
+		}
+	case d.d > 0:
+		return nil, fmt.Errorf("chem: %d:%d has no bonds", d.carbons, d.d)
+	}
+	a.ID = canonicalID(a.Carbons, a.DoubleBondCount, a.Bonds, a.LumpedGeometry, a.HydroxyPosition)
+	for _, n := range d.names {
+		a.Names = append(a.Names, strings.ToLower(n))
+	}
+	return a, nil
+}
+
+// allNames lists the normalised names under which the acid can be found.
+func (a *FattyAcid) allNames() []string {
+	var out []string
+	add := func(s string) {
+		if s != "" {
+			out = append(out, normaliseName(s))
+		}
+	}
+	add(a.CommonName)
+	if a.CommonName != "" && a.Carbons >= 4 {
+		// Trivial names take the trade's "-ic" form; accept "oleic acid" too.
+		add(a.CommonName + " acid")
+	}
+	add(a.SystematicName)
+	add(strings.TrimSuffix(a.SystematicName, " acid"))
+	for _, n := range a.Names {
+		add(n)
+	}
+	return out
+}
+
+// Acids returns the catalogue entries in catalogue order (by class, then
+// chain length). The slice is a copy; the entries are shared and must not be
+// modified.
+func (c *Catalogue) Acids() []*FattyAcid {
+	out := make([]*FattyAcid, len(c.acids))
+	copy(out, c.acids)
+	sort.SliceStable(out, func(i, j int) bool {
+		if out[i].DoubleBondCount != out[j].DoubleBondCount {
+			return out[i].DoubleBondCount < out[j].DoubleBondCount
+		}
+		return out[i].Carbons < out[j].Carbons
+	})
+	return out
+}
+
+// ByID returns the acid with the given canonical ID (case-insensitive).
+func (c *Catalogue) ByID(id string) (*FattyAcid, bool) {
+	a, ok := c.byID[strings.ToLower(strings.TrimSpace(id))]
+	return a, ok
+}
+
+// Len is the number of acids in the catalogue.
+func (c *Catalogue) Len() int { return len(c.acids) }

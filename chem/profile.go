@@ -1,0 +1,259 @@
+package chem
+
+import (
+	"fmt"
+	"math"
+	"strings"
+)
+
+// Basis is the quantity a profile's percentages are expressed in.
+type Basis int
+
+const (
+	// BasisFAMEWeight: weight % of fatty-acid methyl esters. Gas
+	// chromatography area % (AOCS Ce 1h-05, ISO 12966-4) is read as this by
+	// long practice.
+	BasisFAMEWeight Basis = iota
+	// BasisAcidWeight: weight % of free fatty acids.
+	BasisAcidWeight
+	// BasisMole: mole % of fatty-acid chains.
+	BasisMole
+)
+
+// String names the basis as the API does.
+func (b Basis) String() string {
+	switch b {
+	case BasisAcidWeight:
+		return "acid_weight_percent"
+	case BasisMole:
+		return "mole_percent"
+	default:
+		return "fame_weight_percent"
+	}
+}
+
+// DefaultSumTolerance is how far, in percentage points, a profile's sum may
+// stray from 100 and still be normalised rather than rejected.
+const DefaultSumTolerance = 0.5
+
+// exactSum is the distance from 100 below which a sum counts as exactly 100
+// (floating-point noise in the laboratory's export).
+const exactSum = 1e-9
+
+// Entry is one line of a laboratory profile as received.
+type Entry struct {
+	Label   string
+	Percent float64
+}
+
+// Warning records a normalisation or an assumption the calculation made, so
+// that nothing is silently dropped or guessed. Path points at the input it
+// concerns, in the same vocabulary as FieldError.
+type Warning struct {
+	Code    string
+	Message string
+	Path    []any
+}
+
+// Warning codes shared by every calculation that reads a profile.
+const (
+	WarnAssumedIsomer   = "assumed_isomer"
+	WarnNormalised      = "profile_normalised"
+	WarnDuplicateAcid   = "duplicate_acid_summed"
+	WarnUnidentified    = "unidentified_excluded"
+	WarnBasisConversion = "basis_converted"
+	WarnUndefinedIndex  = "index_undefined"
+	WarnMethodScope     = "method_scope"
+)
+
+// Component is one identified acid of a profile.
+type Component struct {
+	Acid *FattyAcid
+	// Percent is the acid's share of the identified acids in the profile's
+	// basis, normalised so that the identified acids sum to 100.
+	Percent float64
+	// MoleFraction is the acid's mole fraction among the identified chains.
+	MoleFraction float64
+}
+
+// Profile is a validated, normalised fatty-acid composition. Build it with
+// NewProfile; the zero value is not usable.
+type Profile struct {
+	Basis Basis
+	// Components are the identified acids in order of first appearance.
+	Components []Component
+	// InputSum is the sum of all percentages as received.
+	InputSum float64
+	// UnidentifiedPercent is the share of unidentified material after
+	// normalising the whole profile to 100.
+	UnidentifiedPercent float64
+	// Warnings lists what normalisation and label reading assumed.
+	Warnings []Warning
+}
+
+// NewProfile reads, checks and normalises a laboratory profile. Every label
+// is resolved against the catalogue; the same acid twice is summed; a sum
+// within tol percentage points of 100 is normalised; anything else is a
+// KindInvalid *Error whose field paths start at "acids".
+func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Profile, error) {
+	if len(entries) == 0 {
+		return nil, Errorf(KindInvalid, "the profile lists no acids").WithField("at least one acid is required", "acids")
+	}
+	if math.IsNaN(tol) || tol < 0 {
+		return nil, Errorf(KindInvalid, "sum tolerance must be a non-negative number").WithField("must be >= 0", "sum_tolerance_percent")
+	}
+	p := &Profile{Basis: basis}
+	bad := Errorf(KindInvalid, "the profile has entries that cannot be used")
+	index := map[*FattyAcid]int{}
+	var unidentified float64
+	for i, e := range entries {
+		if math.IsNaN(e.Percent) || math.IsInf(e.Percent, 0) || e.Percent < 0 || e.Percent > 100 {
+			bad.WithField("percent must be a finite number from 0 to 100", "acids", i, "percent")
+			continue
+		}
+		p.InputSum += e.Percent
+		r, err := cat.Resolve(e.Label)
+		if err != nil {
+			ce, _ := AsError(err)
+			bad.WithField(ce.Message, "acids", i, "acid")
+			bad.Suggestions = append(bad.Suggestions, ce.Suggestions...)
+			continue
+		}
+		if r.Unidentified {
+			unidentified += e.Percent
+			continue
+		}
+		if r.Assumption != "" {
+			p.Warnings = append(p.Warnings, Warning{WarnAssumedIsomer, r.Assumption, []any{"acids", i, "acid"}})
+		}
+		if j, seen := index[r.Acid]; seen {
+			p.Components[j].Percent += e.Percent
+			p.Warnings = append(p.Warnings, Warning{WarnDuplicateAcid,
+				fmt.Sprintf("%s appears more than once (label %q); the entries were summed", r.Acid.ID, e.Label),
+				[]any{"acids", i, "acid"}})
+			continue
+		}
+		index[r.Acid] = len(p.Components)
+		p.Components = append(p.Components, Component{Acid: r.Acid, Percent: e.Percent})
+	}
+	if len(bad.Fields) > 0 {
+		if len(bad.Fields) == 1 {
+			bad.Message = bad.Fields[0].Reason
+		}
+		return nil, bad
+	}
+	if dev := math.Abs(p.InputSum - 100); dev > tol+exactSum {
+		return nil, Errorf(KindInvalid, "the percentages sum to %.4g, outside 100 ± %.4g", p.InputSum, tol).
+			WithField(fmt.Sprintf("sum %.4g is outside 100 ± %.4g percentage points", p.InputSum, tol), "acids")
+	}
+	identified := p.InputSum - unidentified
+	if identified <= 0 {
+		return nil, Errorf(KindInvalid, "the profile has no identified acid with a positive share").
+			WithField("no identified acid with a positive percent", "acids")
+	}
+	if math.Abs(p.InputSum-100) > exactSum {
+		p.Warnings = append(p.Warnings, Warning{WarnNormalised,
+			fmt.Sprintf("the percentages summed to %.6g; they were scaled to 100", p.InputSum), []any{"acids"}})
+	}
+	p.UnidentifiedPercent = 100 * unidentified / p.InputSum
+	if unidentified > 0 {
+		p.Warnings = append(p.Warnings, Warning{WarnUnidentified,
+			fmt.Sprintf("%.4g %% of the profile is unidentified; it counts in the sum but is left out of the chemistry, "+
+				"which is computed on the identified acids scaled to 100 %%", p.UnidentifiedPercent), []any{"acids"}})
+	}
+	for i := range p.Components {
+		p.Components[i].Percent *= 100 / identified
+	}
+	p.fillMoleFractions()
+	return p, nil
+}
+
+// molesPerPercent is the amount of chains one percent of the basis stands
+// for, up to a common factor.
+func (b Basis) molesPerPercent(a *FattyAcid) float64 {
+	switch b {
+	case BasisAcidWeight:
+		return 1 / a.MolarMass()
+	case BasisMole:
+		return 1
+	default:
+		return 1 / a.MethylEsterMolarMass()
+	}
+}
+
+func (p *Profile) fillMoleFractions() {
+	var total float64
+	for i := range p.Components {
+		c := &p.Components[i]
+		c.MoleFraction = c.Percent * p.Basis.molesPerPercent(c.Acid)
+		total += c.MoleFraction
+	}
+	for i := range p.Components {
+		p.Components[i].MoleFraction /= total
+	}
+}
+
+// FromMoleFractions builds a profile directly from mole fractions of
+// catalogue acids (used by models that produce compositions, such as the
+// hardening forecast). Fractions are normalised; the basis of the returned
+// percentages is the one asked for.
+func FromMoleFractions(acids []*FattyAcid, x []float64, basis Basis) *Profile {
+	p := &Profile{Basis: basis, InputSum: 100}
+	var sx float64
+	for _, v := range x {
+		sx += v
+	}
+	var sw float64
+	for i, a := range acids {
+		w := x[i] / sx / basis.molesPerPercent(a)
+		p.Components = append(p.Components, Component{Acid: a, MoleFraction: x[i] / sx, Percent: w})
+		sw += w
+	}
+	for i := range p.Components {
+		p.Components[i].Percent *= 100 / sw
+	}
+	return p
+}
+
+// InBasis returns the identified composition as percentages in another
+// basis, in component order, summing to 100.
+func (p *Profile) InBasis(b Basis) []float64 {
+	out := make([]float64, len(p.Components))
+	var s float64
+	for i, c := range p.Components {
+		out[i] = c.MoleFraction / b.molesPerPercent(c.Acid)
+		s += out[i]
+	}
+	for i := range out {
+		out[i] *= 100 / s
+	}
+	return out
+}
+
+// MeanAcidMolarMass is the mole-average (harmonic with respect to weight)
+// molar mass of the free acids, g/mol.
+func (p *Profile) MeanAcidMolarMass() float64 {
+	var m float64
+	for _, c := range p.Components {
+		m += c.MoleFraction * c.Acid.MolarMass()
+	}
+	return m
+}
+
+// MeanDoubleBonds is the mole-average number of C=C per chain.
+func (p *Profile) MeanDoubleBonds() float64 {
+	var d float64
+	for _, c := range p.Components {
+		d += c.MoleFraction * float64(c.Acid.DoubleBondCount)
+	}
+	return d
+}
+
+// String summarises the profile for debugging.
+func (p *Profile) String() string {
+	parts := make([]string, len(p.Components))
+	for i, c := range p.Components {
+		parts[i] = fmt.Sprintf("%s %.4g", c.Acid.ID, c.Percent)
+	}
+	return p.Basis.String() + ": " + strings.Join(parts, ", ")
+}

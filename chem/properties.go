@@ -1,0 +1,325 @@
+package chem
+
+import "fmt"
+
+// Material is the chemical form the sample is in; it sets the denominators of
+// the iodine and saponification values.
+type Material int
+
+const (
+	// MaterialTAG is an oil or fat as triacylglycerols (the default).
+	MaterialTAG Material = iota
+	// MaterialFreeAcid is free fatty acids (a distillate, split acids).
+	MaterialFreeAcid
+	// MaterialMethylEster is fatty-acid methyl esters (biodiesel, FAME).
+	MaterialMethylEster
+)
+
+// String names the material as the API does.
+func (m Material) String() string {
+	switch m {
+	case MaterialFreeAcid:
+		return "free_fatty_acids"
+	case MaterialMethylEster:
+		return "methyl_esters"
+	default:
+		return "triacylglycerols"
+	}
+}
+
+// aocsAcid is one acid the calculated-iodine-value method counts, with its
+// printed factors [AOCS Recommended Practice Cd 1c-85]. Each triacylglycerol
+// factor is the iodine value of the pure simple TAG divided by 100, each
+// free-acid factor that of the free acid; the tests recompute both.
+type aocsAcid struct {
+	carbons, d    int
+	tag, freeAcid float64
+}
+
+var aocsCd1c85 = []aocsAcid{
+	{16, 1, 0.950, 0.9976},
+	{18, 1, 0.860, 0.8986},
+	{18, 2, 1.732, 1.810},
+	{18, 3, 2.616, 2.735},
+	{20, 1, 0.785, 0.8175},
+	{22, 1, 0.723, 0.7497},
+}
+
+// AOCSFactor returns the Cd 1c-85 factor for an acid in the given material,
+// and false when the method does not count the acid (another chain, a
+// hydroxy acid) or defines no factors for the material (methyl esters).
+func AOCSFactor(a *FattyAcid, m Material) (float64, bool) {
+	if m == MaterialMethylEster || a.HydroxyPosition > 0 {
+		return 0, false
+	}
+	for _, f := range aocsCd1c85 {
+		if f.carbons == a.Carbons && f.d == a.DoubleBondCount {
+			if m == MaterialFreeAcid {
+				return f.freeAcid, true
+			}
+			return f.tag, true
+		}
+	}
+	return 0, false
+}
+
+// AcidResult is one acid's line in the properties.
+type AcidResult struct {
+	Acid *FattyAcid
+	// Percent is the normalised share in the profile's basis.
+	Percent float64
+	// MolePercent is the share of chains.
+	MolePercent float64
+	// FAMEWeightPercent is the share as methyl-ester weight (the basis of
+	// AOCS Cd 1c-85).
+	FAMEWeightPercent float64
+	// IodineValue is the acid's contribution to the exact iodine value.
+	IodineValue float64
+	// IodineValueAOCS is its contribution to the AOCS Cd 1c-85 value; zero
+	// when the method does not count it.
+	IodineValueAOCS float64
+	// CountedByAOCS reports whether the method counts this acid.
+	CountedByAOCS bool
+}
+
+// Sums are the composition sums, in % of identified acids on the profile's
+// basis. Mono, poly and trans follow the labelling definitions of
+// Regulation (EU) No 1169/2011, Annex I: monounsaturates have one cis double
+// bond; polyunsaturates two or more cis, cis methylene-interrupted double
+// bonds; trans fat at least one non-conjugated trans double bond. What fits
+// none of these (conjugated acids without a non-conjugated trans bond) is
+// OtherUnsaturated, so that the five add to 100.
+type Sums struct {
+	Saturated, Monounsaturated, Polyunsaturated, Trans, OtherUnsaturated float64
+	// N3, N6, N9 sum all-cis, methylene-interrupted acids of each family.
+	N3, N6, N9 float64
+	// N6ToN3 and PToS are ratios; nil when the denominator is zero.
+	N6ToN3, PToS *float64
+}
+
+// Indices are nutritional and stability indices, each nil when its
+// denominator is zero.
+type Indices struct {
+	// Cox is the calculated oxidizability [Fatemi & Hammond, Lipids 15:379
+	// (1980)]: (18:1 + 10.3 × 18:2 + 21.6 × 18:3)/100 over cis C18 acids.
+	Cox float64
+	// Atherogenic is Ulbricht & Southgate's index, Lancet 338:985 (1991):
+	// (12:0 + 4×14:0 + 16:0)/(MUFA + n-6 + n-3).
+	Atherogenic *float64
+	// Thrombogenic is their (14:0 + 16:0 + 18:0)/(0.5 MUFA + 0.5 n-6 +
+	// 3 n-3 + n-3/n-6), with the last term as originally published; it is
+	// dropped, with a warning, when there is no n-6.
+	Thrombogenic *float64
+}
+
+// Properties are the certificate values calculated from a profile.
+type Properties struct {
+	Material Material
+	Basis    Basis
+	// IodineValue is the exact (stoichiometric) iodine value, g I2/100 g.
+	IodineValue float64
+	// IodineValueAOCS is the AOCS Cd 1c-85 calculated iodine value; valid
+	// only when AOCSApplies.
+	IodineValueAOCS float64
+	AOCSApplies     bool
+	// SaponificationValue is exact, mg KOH/g.
+	SaponificationValue float64
+	// Mean molar masses, g/mol: free acid, methyl ester, and the material
+	// itself (TAG for oils).
+	MeanAcidMolarMass, MeanMethylEsterMolarMass, MeanTAGMolarMass float64
+	MeanDoubleBondsPerChain                                       float64
+	UnidentifiedPercent                                           float64
+	Sums                                                          Sums
+	Indices                                                       Indices
+	Acids                                                         []AcidResult
+	Warnings                                                      []Warning
+}
+
+// materialMolarMass is the mean molar mass of what one mole of chains is
+// carried in, per chain: a third of the mean TAG, the acid, or the ester.
+func materialMassPerChain(p *Profile, m Material) float64 {
+	mfa := p.MeanAcidMolarMass()
+	switch m {
+	case MaterialFreeAcid:
+		return mfa
+	case MaterialMethylEster:
+		return mfa + MolarMassCH2
+	default:
+		return mfa + GlycerolBackboneIncrement/3
+	}
+}
+
+// IodineValue is the exact iodine value of the profile in the given
+// material: 100 × M(I2) × mol C=C per gram.
+func IodineValue(p *Profile, m Material) float64 {
+	return 100 * MolarMassI2 * p.MeanDoubleBonds() / materialMassPerChain(p, m)
+}
+
+// SaponificationValue is the exact saponification value, mg KOH per g: one
+// KOH per ester or acid group [the basis of AOCS Cd 3a-94 and ISO 3657
+// Annex B: SV from the mean molar mass].
+func SaponificationValue(p *Profile, m Material) float64 {
+	return 1000 * MolarMassKOH / materialMassPerChain(p, m)
+}
+
+// ComputeProperties calculates the certificate values for a profile.
+func ComputeProperties(p *Profile, m Material) Properties {
+	out := Properties{
+		Material:                m,
+		Basis:                   p.Basis,
+		IodineValue:             IodineValue(p, m),
+		SaponificationValue:     SaponificationValue(p, m),
+		MeanAcidMolarMass:       p.MeanAcidMolarMass(),
+		MeanDoubleBondsPerChain: p.MeanDoubleBonds(),
+		UnidentifiedPercent:     p.UnidentifiedPercent,
+		AOCSApplies:             m != MaterialMethylEster,
+		Acids:                   make([]AcidResult, len(p.Components)),
+		Warnings:                append([]Warning(nil), p.Warnings...),
+	}
+	out.MeanMethylEsterMolarMass = out.MeanAcidMolarMass + MolarMassCH2
+	out.MeanTAGMolarMass = 3*out.MeanAcidMolarMass + GlycerolBackboneIncrement
+
+	perChain := materialMassPerChain(p, m)
+	fame := p.InBasis(BasisFAMEWeight)
+	var ignored []string
+	for i, c := range p.Components {
+		r := AcidResult{
+			Acid:              c.Acid,
+			Percent:           c.Percent,
+			MolePercent:       100 * c.MoleFraction,
+			FAMEWeightPercent: fame[i],
+			IodineValue:       100 * MolarMassI2 * c.MoleFraction * float64(c.Acid.DoubleBondCount) / perChain,
+		}
+		if f, ok := AOCSFactor(c.Acid, m); ok {
+			r.CountedByAOCS = true
+			r.IodineValueAOCS = fame[i] * f
+			out.IodineValueAOCS += r.IodineValueAOCS
+		} else if c.Acid.DoubleBondCount > 0 && c.Percent > 0 && out.AOCSApplies {
+			ignored = append(ignored, fmt.Sprintf("%s (%.3g %%)", c.Acid.ID, c.Percent))
+		}
+		out.Acids[i] = r
+	}
+	switch {
+	case !out.AOCSApplies:
+		out.Warnings = append(out.Warnings, Warning{WarnMethodScope,
+			"AOCS Cd 1c-85 defines factors for triacylglycerols and free fatty acids only; no calculated value is given for methyl esters", nil})
+	case len(ignored) > 0:
+		out.Warnings = append(out.Warnings, Warning{WarnMethodScope,
+			fmt.Sprintf("AOCS Cd 1c-85 counts only 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1; it ignores %v, which the exact iodine value includes",
+				ignored), nil})
+	}
+	if out.AOCSApplies && p.Basis != BasisFAMEWeight {
+		out.Warnings = append(out.Warnings, Warning{WarnBasisConversion,
+			"the profile was converted to FAME weight % for AOCS Cd 1c-85, whose factors apply to that basis", nil})
+	}
+	out.Sums = computeSums(p)
+	out.Indices, out.Warnings = computeIndices(p, out.Sums, out.Warnings)
+	return out
+}
+
+// nonConjugatedTrans reports whether the acid has a trans double bond that is
+// methylene-interrupted from every other double bond (or is a lumped trans
+// entry, whose isomers are by far mostly so).
+func nonConjugatedTrans(a *FattyAcid) bool {
+	if a.LumpedGeometry == Trans {
+		return true
+	}
+	for i, b := range a.Bonds {
+		if b.Geometry != Trans {
+			continue
+		}
+		conj := (i > 0 && b.Position-a.Bonds[i-1].Position == 2) ||
+			(i+1 < len(a.Bonds) && a.Bonds[i+1].Position-b.Position == 2)
+		if !conj {
+			return true
+		}
+	}
+	return false
+}
+
+func computeSums(p *Profile) Sums {
+	var s Sums
+	for _, c := range p.Components {
+		a := c.Acid
+		switch {
+		case a.DoubleBondCount == 0:
+			s.Saturated += c.Percent
+		case nonConjugatedTrans(a):
+			s.Trans += c.Percent
+		case a.DoubleBondCount == 1 && a.AllCis():
+			s.Monounsaturated += c.Percent
+		case a.AllCis() && !a.Conjugated():
+			s.Polyunsaturated += c.Percent
+		default:
+			s.OtherUnsaturated += c.Percent
+		}
+		switch a.OmegaFamily() {
+		case 3:
+			s.N3 += c.Percent
+		case 6:
+			s.N6 += c.Percent
+		case 9:
+			s.N9 += c.Percent
+		}
+	}
+	s.N6ToN3 = ratio(s.N6, s.N3)
+	s.PToS = ratio(s.Polyunsaturated, s.Saturated)
+	return s
+}
+
+func ratio(num, den float64) *float64 {
+	if den <= 0 {
+		return nil
+	}
+	r := num / den
+	return &r
+}
+
+func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
+	var c18m, c18d, c18t, c12, c14, c16, c18 float64
+	for _, c := range p.Components {
+		a := c.Acid
+		switch {
+		case a.DoubleBondCount == 0:
+			switch a.Carbons {
+			case 12:
+				c12 += c.Percent
+			case 14:
+				c14 += c.Percent
+			case 16:
+				c16 += c.Percent
+			case 18:
+				c18 += c.Percent
+			}
+		case a.Carbons == 18 && a.AllCis() && !a.Conjugated() && a.HydroxyPosition == 0:
+			switch a.DoubleBondCount {
+			case 1:
+				c18m += c.Percent
+			case 2:
+				c18d += c.Percent
+			case 3:
+				c18t += c.Percent
+			}
+		}
+	}
+	var ix Indices
+	ix.Cox = (c18m + 10.3*c18d + 21.6*c18t) / 100
+	ix.Atherogenic = ratio(c12+4*c14+c16, s.Monounsaturated+s.N6+s.N3)
+	den := 0.5*s.Monounsaturated + 0.5*s.N6 + 3*s.N3
+	if s.N6 > 0 {
+		den += s.N3 / s.N6
+	} else {
+		warn = append(warn, Warning{WarnUndefinedIndex,
+			"the profile has no n-6 acid, so the n-3/n-6 term of the thrombogenic index was left out", nil})
+	}
+	ix.Thrombogenic = ratio(c14+c16+c18, den)
+	if ix.Atherogenic == nil || ix.Thrombogenic == nil {
+		warn = append(warn, Warning{WarnUndefinedIndex,
+			"the profile has no unsaturated acid in the denominator of the atherogenic or thrombogenic index; the index is not given", nil})
+	}
+	if p.Basis != BasisFAMEWeight {
+		warn = append(warn, Warning{WarnBasisConversion,
+			fmt.Sprintf("composition sums and indices are on the profile's basis (%s); the indices were published on GC area %% (FAME weight %%)", p.Basis), nil})
+	}
+	return ix, warn
+}
