@@ -75,8 +75,10 @@ var builtinAcids = []acidDef{
 	{18, 1, "t", 0, "", "trans-octadecenoic acids, positions not resolved", []string{"trans-oleic", "total trans 18:1"}, false},
 	{20, 1, "c9", 0, "gadoleic", "(9Z)-icos-9-enoic acid", nil, false},
 	{20, 1, "c11", 0, "gondoic", "(11Z)-icos-11-enoic acid", []string{"eicosenoic"}, true},
+	{20, 1, "t", 0, "", "trans-icosenoic acids, positions not resolved", nil, false},
 	{22, 1, "c11", 0, "cetoleic", "(11Z)-docos-11-enoic acid", nil, false},
 	{22, 1, "c13", 0, "erucic", "(13Z)-docos-13-enoic acid", nil, true},
+	{22, 1, "t", 0, "", "trans-docosenoic acids, positions not resolved", []string{"brassidic"}, false},
 	{24, 1, "c15", 0, "nervonic", "(15Z)-tetracos-15-enoic acid", nil, true},
 	{18, 1, "c9", 12, "ricinoleic", "(9Z,12R)-12-hydroxyoctadec-9-enoic acid", nil, true},
 

@@ -41,6 +41,8 @@ func (k ErrorKind) String() string {
 type FieldError struct {
 	Path   []any
 	Reason string
+	// Suggestions are known values close to the rejected one, best first.
+	Suggestions []string
 }
 
 // Error is the one error type chem returns for bad input or an impossible
@@ -83,7 +85,7 @@ func (e *Error) Prefix(prefix ...any) *Error {
 		p := make([]any, 0, len(prefix)+len(f.Path))
 		p = append(p, prefix...)
 		p = append(p, f.Path...)
-		out.Fields[i] = FieldError{Path: p, Reason: f.Reason}
+		out.Fields[i] = FieldError{Path: p, Reason: f.Reason, Suggestions: f.Suggestions}
 	}
 	return out
 }

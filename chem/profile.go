@@ -115,8 +115,8 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 		r, err := cat.Resolve(e.Label)
 		if err != nil {
 			ce, _ := AsError(err)
-			bad.WithField(ce.Message, "acids", i, "acid")
-			bad.Suggestions = append(bad.Suggestions, ce.Suggestions...)
+			bad.Fields = append(bad.Fields, FieldError{
+				Path: []any{"acids", i, "acid"}, Reason: ce.Message, Suggestions: ce.Suggestions})
 			continue
 		}
 		if r.Unidentified {
