@@ -78,7 +78,7 @@ var builtinAcids = []acidDef{
 	{20, 1, "t", 0, "", "trans-icosenoic acids, positions not resolved", nil, false},
 	{22, 1, "c11", 0, "cetoleic", "(11Z)-docos-11-enoic acid", nil, false},
 	{22, 1, "c13", 0, "erucic", "(13Z)-docos-13-enoic acid", nil, true},
-	{22, 1, "t", 0, "", "trans-docosenoic acids, positions not resolved", []string{"brassidic"}, false},
+	{22, 1, "t", 0, "", "trans-docosenoic acids, positions not resolved", nil, false},
 	{24, 1, "c15", 0, "nervonic", "(15Z)-tetracos-15-enoic acid", nil, true},
 	{18, 1, "c9", 12, "ricinoleic", "(9Z,12R)-12-hydroxyoctadec-9-enoic acid", nil, true},
 
