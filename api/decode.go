@@ -1,0 +1,88 @@
+package api
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"net/http"
+	"strings"
+
+	"github.com/labstack/echo/v4"
+)
+
+// decodeStrict reads the JSON body into v, rejecting unknown fields,
+// trailing data and anything that does not fit the Go types. It is the
+// second validation layer after the OpenAPI schema, and protects handlers
+// even when they are mounted without the validator.
+func decodeStrict(c echo.Context, v any) error {
+	body, err := io.ReadAll(c.Request().Body)
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			return err
+		}
+		return NewError(KindMalformed, "the request body could not be read")
+	}
+	dec := json.NewDecoder(bytes.NewReader(body))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		return jsonError(err)
+	}
+	if dec.More() {
+		return NewError(KindMalformed, "the request body has data after the JSON value", FieldError{Pointer: "", Reason: "trailing data after the JSON value"})
+	}
+	var extra json.RawMessage
+	if err := dec.Decode(&extra); err != io.EOF {
+		return NewError(KindMalformed, "the request body has data after the JSON value", FieldError{Pointer: "", Reason: "trailing data after the JSON value"})
+	}
+	return nil
+}
+
+func jsonError(err error) *Error {
+	var syn *json.SyntaxError
+	var typ *json.UnmarshalTypeError
+	switch {
+	case errors.As(err, &syn):
+		return NewError(KindMalformed, fmt.Sprintf("the request body is not valid JSON (at byte %d)", syn.Offset),
+			FieldError{Pointer: "", Reason: syn.Error()})
+	case errors.As(err, &typ):
+		ptr := ""
+		if typ.Field != "" {
+			ptr = "/" + strings.ReplaceAll(typ.Field, ".", "/")
+		}
+		return NewError(KindMalformed, "a field has the wrong type",
+			FieldError{Pointer: ptr, Reason: fmt.Sprintf("expected %s, got JSON %s", typ.Type, typ.Value)})
+	case errors.Is(err, io.EOF), errors.Is(err, io.ErrUnexpectedEOF):
+		return NewError(KindMalformed, "the request body is empty or cut short", FieldError{Pointer: "", Reason: "incomplete JSON"})
+	case strings.HasPrefix(err.Error(), "json: unknown field "):
+		name := strings.Trim(strings.TrimPrefix(err.Error(), "json: unknown field "), `"`)
+		return NewError(KindMalformed, "the request has a field the contract does not define",
+			FieldError{Pointer: "", Reason: "unknown field " + name})
+	}
+	return NewError(KindMalformed, "the request body is not valid JSON", FieldError{Pointer: "", Reason: err.Error()})
+}
+
+// finite reports whether every value is a finite float; responses are
+// checked before they are encoded.
+func finite(vs ...float64) bool {
+	for _, v := range vs {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return false
+		}
+	}
+	return true
+}
+
+// respond writes a JSON success body. Encoding fails on NaN or ±Inf, which
+// the error handler then answers as an internal error, so a non-finite
+// number never reaches a client.
+func respond(c echo.Context, status int, v any) error {
+	body, err := json.Marshal(v)
+	if err != nil {
+		return fmt.Errorf("encoding response: %w", err)
+	}
+	return c.JSONBlob(status, body)
+}

@@ -1,0 +1,260 @@
+package api
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"log/slog"
+	"net/http"
+	"strconv"
+	"strings"
+
+	"github.com/labstack/echo/v4"
+
+	"lipidsvc/chem"
+)
+
+// Kind is the API's small error vocabulary.
+type Kind int
+
+const (
+	// KindInternal is anything unexpected; its cause is logged, never shown.
+	KindInternal Kind = iota
+	// KindMalformed: the request does not match the contract.
+	KindMalformed
+	// KindTooLarge: the body exceeds the configured limit.
+	KindTooLarge
+	// KindUnsupportedMedia: the body is not JSON.
+	KindUnsupportedMedia
+	// KindUnprocessable: the request matches the contract but breaks a
+	// domain rule.
+	KindUnprocessable
+	// KindNotFound: no such route.
+	KindNotFound
+	// KindMethodNotAllowed: the route exists for other methods.
+	KindMethodNotAllowed
+	// KindUnavailable: the request ran out of time or the instance is
+	// shutting down.
+	KindUnavailable
+)
+
+// problemTypes is the only table from error kind to HTTP status.
+var problemTypes = map[Kind]struct {
+	status int
+	slug   string
+	title  string
+}{
+	KindInternal:         {http.StatusInternalServerError, "internal", "Internal error"},
+	KindMalformed:        {http.StatusBadRequest, "malformed-request", "The request does not match the contract"},
+	KindTooLarge:         {http.StatusRequestEntityTooLarge, "body-too-large", "The request body is too large"},
+	KindUnsupportedMedia: {http.StatusUnsupportedMediaType, "unsupported-media-type", "The request body must be application/json"},
+	KindUnprocessable:    {http.StatusUnprocessableEntity, "unprocessable", "The request cannot be computed"},
+	KindNotFound:         {http.StatusNotFound, "not-found", "No such resource"},
+	KindMethodNotAllowed: {http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed on this resource"},
+	KindUnavailable:      {http.StatusServiceUnavailable, "unavailable", "The service could not answer in time"},
+}
+
+// ProblemTypeBase prefixes every problem type URI.
+const ProblemTypeBase = "urn:lipidsvc:problem:"
+
+// FieldError points at one offending part of the request body.
+type FieldError struct {
+	Pointer     string   `json:"pointer"`
+	Reason      string   `json:"reason"`
+	Suggestions []string `json:"suggestions,omitempty"`
+}
+
+// Error is an error the API answers with a problem document.
+type Error struct {
+	Kind   Kind
+	Detail string
+	Fields []FieldError
+	// Cause is logged for internal errors and never shown to the client.
+	Cause error
+}
+
+// Error implements error.
+func (e *Error) Error() string {
+	if e.Cause != nil {
+		return fmt.Sprintf("%s: %v", e.Detail, e.Cause)
+	}
+	return e.Detail
+}
+
+// Unwrap exposes the cause.
+func (e *Error) Unwrap() error { return e.Cause }
+
+// NewError builds an *Error.
+func NewError(kind Kind, detail string, fields ...FieldError) *Error {
+	return &Error{Kind: kind, Detail: detail, Fields: fields}
+}
+
+// Problem is an RFC 9457 problem details document.
+type Problem struct {
+	Type      string       `json:"type"`
+	Title     string       `json:"title"`
+	Status    int          `json:"status"`
+	Detail    string       `json:"detail"`
+	Instance  string       `json:"instance"`
+	RequestID string       `json:"request_id"`
+	Errors    []FieldError `json:"errors,omitempty"`
+}
+
+// ContextKeyRequestID is where the request-id middleware leaves the id in
+// the echo context.
+const ContextKeyRequestID = "lipidsvc.request_id"
+
+// RequestID returns the request's id, or "" if none was set.
+func RequestID(c echo.Context) string {
+	id, _ := c.Get(ContextKeyRequestID).(string)
+	return id
+}
+
+// Recorder counts domain events for metrics. The service supplies a
+// Prometheus implementation; NopRecorder does nothing.
+type Recorder interface {
+	// Calculation counts one completed calculation of the given kind.
+	Calculation(kind string)
+	// Rejection counts one request answered with a 4xx problem of the given
+	// problem slug.
+	Rejection(slug string)
+}
+
+// NopRecorder is a Recorder that records nothing.
+type NopRecorder struct{}
+
+// Calculation implements Recorder.
+func (NopRecorder) Calculation(string) {}
+
+// Rejection implements Recorder.
+func (NopRecorder) Rejection(string) {}
+
+// classify turns any error into an *Error.
+func classify(err error) *Error {
+	var ae *Error
+	if errors.As(err, &ae) {
+		return ae
+	}
+	if ce, ok := chem.AsError(err); ok {
+		return fromChem(ce)
+	}
+	var he *echo.HTTPError
+	if errors.As(err, &he) {
+		detail := http.StatusText(he.Code)
+		if m, ok := he.Message.(string); ok && m != "" {
+			detail = m
+		}
+		switch he.Code {
+		case http.StatusNotFound:
+			return NewError(KindNotFound, "no route matches this path")
+		case http.StatusMethodNotAllowed:
+			return NewError(KindMethodNotAllowed, "this route does not accept the method")
+		case http.StatusRequestEntityTooLarge:
+			return NewError(KindTooLarge, "the request body exceeds the configured limit")
+		case http.StatusUnsupportedMediaType:
+			return NewError(KindUnsupportedMedia, detail)
+		case http.StatusBadRequest:
+			return NewError(KindMalformed, detail)
+		case http.StatusServiceUnavailable:
+			return NewError(KindUnavailable, detail)
+		}
+		return &Error{Kind: KindInternal, Detail: "internal error", Cause: err}
+	}
+	var mbe *http.MaxBytesError
+	if errors.As(err, &mbe) {
+		return NewError(KindTooLarge, fmt.Sprintf("the request body exceeds the limit of %d bytes", mbe.Limit))
+	}
+	if errors.Is(err, context.DeadlineExceeded) {
+		return &Error{Kind: KindUnavailable, Detail: "the calculation ran past the request time limit", Cause: err}
+	}
+	if errors.Is(err, context.Canceled) {
+		return &Error{Kind: KindUnavailable, Detail: "the request was cancelled", Cause: err}
+	}
+	return &Error{Kind: KindInternal, Detail: "internal error", Cause: err}
+}
+
+// fromChem maps a domain error; its field paths become JSON pointers.
+func fromChem(ce *chem.Error) *Error {
+	e := &Error{Kind: KindUnprocessable, Detail: ce.Message}
+	if ce.Kind == chem.KindNoConvergence {
+		e.Detail = "the solver did not converge: " + ce.Message
+	}
+	for _, f := range ce.Fields {
+		e.Fields = append(e.Fields, FieldError{Pointer: Pointer(f.Path...), Reason: f.Reason, Suggestions: f.Suggestions})
+	}
+	if len(e.Fields) == 0 && len(ce.Suggestions) > 0 {
+		e.Fields = append(e.Fields, FieldError{Pointer: "", Reason: ce.Message, Suggestions: ce.Suggestions})
+	}
+	return e
+}
+
+// withPrefix returns err with the chem field paths under prefix, so that a
+// profile's errors point into the request body where the profile sits.
+func withPrefix(err error, prefix ...any) error {
+	if ce, ok := chem.AsError(err); ok {
+		return ce.Prefix(prefix...)
+	}
+	return err
+}
+
+// Pointer builds an RFC 6901 JSON pointer from path elements.
+func Pointer(path ...any) string {
+	if len(path) == 0 {
+		return ""
+	}
+	var b strings.Builder
+	for _, p := range path {
+		b.WriteByte('/')
+		var s string
+		switch v := p.(type) {
+		case string:
+			s = v
+		case int:
+			s = strconv.Itoa(v)
+		default:
+			s = fmt.Sprint(v)
+		}
+		s = strings.ReplaceAll(s, "~", "~0")
+		s = strings.ReplaceAll(s, "/", "~1")
+		b.WriteString(s)
+	}
+	return b.String()
+}
+
+// ErrorHandler is the echo error handler: the one place that writes error
+// bodies. 5xx answers are logged with their cause; 4xx are counted.
+func ErrorHandler(logger *slog.Logger, rec Recorder) echo.HTTPErrorHandler {
+	return func(err error, c echo.Context) {
+		if c.Response().Committed {
+			return
+		}
+		e := classify(err)
+		pt := problemTypes[e.Kind]
+		p := Problem{
+			Type:      ProblemTypeBase + pt.slug,
+			Title:     pt.title,
+			Status:    pt.status,
+			Detail:    e.Detail,
+			Instance:  c.Request().URL.Path,
+			RequestID: RequestID(c),
+			Errors:    e.Fields,
+		}
+		if pt.status >= 500 {
+			logger.ErrorContext(c.Request().Context(), "request failed",
+				"request_id", p.RequestID, "status", pt.status, "path", p.Instance, "cause", err.Error())
+		} else {
+			rec.Rejection(pt.slug)
+		}
+		body, merr := json.Marshal(p)
+		if merr != nil {
+			body = []byte(`{"type":"` + ProblemTypeBase + `internal","title":"Internal error","status":500,"detail":"internal error","instance":"","request_id":""}`)
+			pt.status = http.StatusInternalServerError
+		}
+		if c.Request().Method == http.MethodHead {
+			_ = c.NoContent(pt.status)
+			return
+		}
+		_ = c.Blob(pt.status, "application/problem+json", body)
+	}
+}

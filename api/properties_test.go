@@ -1,0 +1,227 @@
+package api_test
+
+import (
+	"fmt"
+	"net/http"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/api"
+)
+
+const soyLike = `{"profile":{"acids":[
+ {"acid":"16:0","percent":10.5},{"acid":"16:1","percent":0.1},{"acid":"18:0","percent":4.0},
+ {"acid":"18:1","percent":23.0},{"acid":"18:2","percent":53.7},{"acid":"18:3","percent":7.6},
+ {"acid":"20:0","percent":0.4},{"acid":"20:1","percent":0.3},{"acid":"22:0","percent":0.4}]}}`
+
+// TestPropertiesSoyLike checks the certificate values through the whole
+// HTTP stack against DOMAIN.md §3-§6 [calc]: IV exact 132.98, AOCS Cd 1c-85
+// 133.001, SV 192.65, mean molar masses 278.552 / 292.579 / 873.705,
+// Cox 7.40, AI 0.124.
+func TestPropertiesSoyLike(t *testing.T) {
+	app := newApp(t)
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: soyLike})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got := decode[api.PropertiesResponse](t, rec)
+	require.InDelta(t, 132.98, got.IodineValue, 0.01)
+	require.InDelta(t, 133.001, *got.AOCS.IodineValue, 0.01)
+	require.Equal(t, "triacylglycerol", *got.AOCS.FactorSet)
+	require.InDelta(t, 192.65, got.SaponificationValue, 0.02)
+	require.InDelta(t, 278.552, got.MeanMolarMass.AcidGPerMol, 0.005)
+	require.InDelta(t, 292.579, got.MeanMolarMass.MethylEsterGPerMol, 0.005)
+	require.InDelta(t, 873.705, got.MeanMolarMass.TriacylglycerolGPerMol, 0.005)
+	require.InDelta(t, 7.40, got.Indices.CalculatedOxidizability, 0.01)
+	require.InDelta(t, 0.124, *got.Indices.AtherogenicIndex, 0.01)
+	require.Len(t, got.Acids, 9)
+
+	// The bare labels were read as the common isomers, each said so with a
+	// pointer at the label.
+	pointers := map[string]bool{}
+	for _, w := range got.Warnings {
+		if w.Code == "assumed_isomer" {
+			pointers[w.Pointer] = true
+		}
+	}
+	for _, i := range []int{1, 3, 4, 5, 7} { // 16:1, 18:1, 18:2, 18:3, 20:1
+		require.True(t, pointers[fmt.Sprintf("/profile/acids/%d/acid", i)], "warning for entry %d in %v", i, got.Warnings)
+	}
+	require.NotEmpty(t, rec.Header().Get("X-Request-ID"))
+}
+
+func TestPropertiesDemoRequest(t *testing.T) {
+	app := newApp(t)
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: readFile(t, "testdata", "demo", "properties-request.json")})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got := decode[api.PropertiesResponse](t, rec)
+	// A soybean-type profile: inside Codex CXS 210 soybean IV 124-139.
+	require.Greater(t, got.IodineValue, 124.0)
+	require.Less(t, got.IodineValue, 139.0)
+	require.InDelta(t, 0.3, got.UnidentifiedPercent, 1e-9)
+	var codes []string
+	for _, w := range got.Warnings {
+		codes = append(codes, w.Code)
+	}
+	require.Contains(t, codes, "unidentified_excluded")
+}
+
+func TestPropertiesMaterials(t *testing.T) {
+	app := newApp(t)
+	body := func(material string) string {
+		return `{"material":"` + material + `","profile":{"acids":[{"acid":"oleic","percent":100}]}}`
+	}
+	// Pure compounds [calc, DOMAIN.md §4]: triolein 85.99, oleic acid 89.85,
+	// methyl oleate 85.60.
+	cases := []struct {
+		material string
+		iv       float64
+		aocs     bool
+	}{
+		{"triacylglycerols", 85.99, true},
+		{"free_fatty_acids", 89.85, true},
+		{"methyl_esters", 85.60, false},
+	}
+	for _, c := range cases {
+		rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: body(c.material)})
+		require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+		got := decode[api.PropertiesResponse](t, rec)
+		require.InDelta(t, c.iv, got.IodineValue, 0.01, c.material)
+		require.Equal(t, c.aocs, got.AOCS.Applies, c.material)
+		if !c.aocs {
+			require.Nil(t, got.AOCS.IodineValue)
+			require.Nil(t, got.AOCS.FactorSet)
+		}
+	}
+}
+
+func TestRequestIDHonoured(t *testing.T) {
+	app := newApp(t)
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{}`,
+		header: map[string]string{"X-Request-ID": "nb-lims-0042"}})
+	require.Equal(t, "nb-lims-0042", rec.Header().Get("X-Request-ID"))
+	require.Equal(t, "nb-lims-0042", decode[api.Problem](t, rec).RequestID)
+	// An unusable id is replaced.
+	rec = do(t, app, call{method: http.MethodGet, path: "/healthz", header: map[string]string{"X-Request-ID": strings.Repeat("x", 200)}})
+	require.Len(t, rec.Header().Get("X-Request-ID"), 32)
+}
+
+func entries(n int) string {
+	parts := make([]string, n)
+	for i := range parts {
+		parts[i] = fmt.Sprintf(`{"acid":"16:0","percent":%g}`, 100/float64(n))
+	}
+	return strings.Join(parts, ",")
+}
+
+// TestBadRequests: every malformed or impossible request gets the right 4xx
+// problem document, pointing at the field at fault, and never a 5xx.
+func TestBadRequests(t *testing.T) {
+	app := newApp(t)
+	ok := `{"acid":"16:0","percent":100}`
+	prof := func(acids string) string { return `{"profile":{"acids":[` + acids + `]}}` }
+	huge := `{"profile":{"acids":[` + ok + `]},"material":"` + strings.Repeat("x", 1<<20) + `"}`
+	cases := []struct {
+		name    string
+		c       call
+		status  int
+		pointer string // "-" when no pointer is expected
+	}{
+		{"malformed JSON", call{body: `{"profile":`}, 400, ""},
+		{"not JSON", call{body: `hello`}, 400, ""},
+		{"trailing object", call{body: prof(ok) + `{}`}, 400, ""},
+		{"trailing garbage", call{body: prof(ok) + ` x`}, 400, ""},
+		{"JSON array", call{body: `[1,2]`}, 400, ""},
+		{"JSON null", call{body: `null`}, 400, "-"},
+		{"empty body", call{body: ` `}, 400, ""},
+		{"unknown top-level field", call{body: `{"profile":{"acids":[` + ok + `]},"colour":"red"}`}, 400, "/colour"},
+		{"unknown entry field", call{body: prof(`{"acid":"16:0","percent":100,"note":"x"}`)}, 400, "/profile/acids/0/note"},
+		{"percent as string", call{body: prof(`{"acid":"16:0","percent":"ten"}`)}, 400, "/profile/acids/0/percent"},
+		{"acids as object", call{body: `{"profile":{"acids":{"16:0":100}}}`}, 400, "/profile/acids"},
+		{"profile as string", call{body: `{"profile":"16:0 100"}`}, 400, "/profile"},
+		{"acid as number", call{body: prof(`{"acid":16,"percent":100}`)}, 400, "/profile/acids/0/acid"},
+		{"NaN token", call{body: prof(`{"acid":"16:0","percent":NaN}`)}, 400, ""},
+		{"Infinity token", call{body: prof(`{"acid":"16:0","percent":Infinity}`)}, 400, ""},
+		{"1e400", call{body: prof(`{"acid":"16:0","percent":1e400}`)}, 400, "-"},
+		{"negative percent", call{body: prof(`{"acid":"16:0","percent":-1},{"acid":"18:0","percent":101}`)}, 400, "/profile/acids/0/percent"},
+		{"percent above 100", call{body: prof(`{"acid":"16:0","percent":100.5}`)}, 400, "/profile/acids/0/percent"},
+		{"empty list", call{body: prof(``)}, 400, "/profile/acids"},
+		{"more than 300 entries", call{body: prof(entries(301))}, 400, "/profile/acids"},
+		{"missing profile", call{body: `{"material":"triacylglycerols"}`}, 400, "/profile"},
+		{"missing percent", call{body: prof(`{"acid":"16:0"}`)}, 400, "/profile/acids/0/percent"},
+		{"empty label", call{body: prof(`{"acid":"","percent":100}`)}, 400, "/profile/acids/0/acid"},
+		{"label too long", call{body: prof(`{"acid":"` + strings.Repeat("9", 65) + `","percent":100}`)}, 400, "/profile/acids/0/acid"},
+		{"unknown basis", call{body: `{"profile":{"basis":"volume_percent","acids":[` + ok + `]}}`}, 400, "/profile/basis"},
+		{"unknown material", call{body: `{"material":"soap","profile":{"acids":[` + ok + `]}}`}, 400, "/material"},
+		{"tolerance out of range", call{body: `{"profile":{"sum_tolerance_percent":50,"acids":[` + ok + `]}}`}, 400, "/profile/sum_tolerance_percent"},
+		{"sum outside tolerance", call{body: prof(`{"acid":"16:0","percent":60},{"acid":"18:1 c9","percent":41}`)}, 422, "/profile/acids"},
+		{"unknown label", call{body: prof(`{"acid":"16:0","percent":50},{"acid":"oleik","percent":50}`)}, 422, "/profile/acids/1/acid"},
+		{"ambiguous label", call{body: prof(`{"acid":"16:0","percent":50},{"acid":"20:3","percent":50}`)}, 422, "/profile/acids/1/acid"},
+		{"only unidentified", call{body: prof(`{"acid":"others","percent":100}`)}, 422, "/profile/acids"},
+		{"body over the limit", call{body: huge}, 413, "-"},
+		{"text/plain", call{body: prof(ok), header: map[string]string{"Content-Type": "text/plain"}}, 415, "-"},
+		{"no content type", call{body: prof(ok), header: map[string]string{"Content-Type": ""}}, 415, "-"},
+		{"form content type", call{body: prof(ok), header: map[string]string{"Content-Type": "application/x-www-form-urlencoded"}}, 415, "-"},
+		{"wrong method", call{method: http.MethodGet}, 405, "-"},
+		{"wrong method PUT", call{method: http.MethodPut, body: prof(ok)}, 405, "-"},
+		{"unknown route", call{method: http.MethodPost, path: "/v1/propertys", body: prof(ok)}, 404, "-"},
+		{"unknown route GET", call{method: http.MethodGet, path: "/v2/fatty-acids"}, 404, "-"},
+	}
+	require.GreaterOrEqual(t, len(cases), 25)
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			c := tc.c
+			if c.method == "" {
+				c.method = http.MethodPost
+			}
+			if c.path == "" {
+				c.path = "/v1/properties"
+			}
+			rec := do(t, app, c)
+			require.Equal(t, tc.status, rec.Code, rec.Body.String())
+			require.Equal(t, "application/problem+json", rec.Header().Get("Content-Type"))
+			p := decode[api.Problem](t, rec)
+			require.Equal(t, tc.status, p.Status)
+			require.True(t, strings.HasPrefix(p.Type, api.ProblemTypeBase), p.Type)
+			require.NotEmpty(t, p.Title)
+			require.NotEmpty(t, p.Detail)
+			require.Equal(t, c.path, p.Instance)
+			require.NotEmpty(t, p.RequestID)
+			switch tc.pointer {
+			case "-":
+			case "":
+				require.NotEmpty(t, p.Errors, "errors list")
+			default:
+				var ptrs []string
+				for _, e := range p.Errors {
+					ptrs = append(ptrs, e.Pointer)
+				}
+				require.Contains(t, ptrs, tc.pointer)
+			}
+		})
+	}
+}
+
+func TestUnknownLabelSuggests(t *testing.T) {
+	app := newApp(t)
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties",
+		body: `{"profile":{"acids":[{"acid":"18:1 c10","percent":100}]}}`})
+	require.Equal(t, http.StatusUnprocessableEntity, rec.Code)
+	p := decode[api.Problem](t, rec)
+	require.Len(t, p.Errors, 1)
+	require.Contains(t, p.Errors[0].Reason, `"18:1 c10"`)
+	require.Contains(t, p.Errors[0].Suggestions, "18:1 c9")
+}
+
+func BenchmarkPropertiesHTTP(b *testing.B) {
+	app := newApp(b)
+	b.ReportAllocs()
+	for b.Loop() {
+		req := newJSONRequest(soyLike)
+		rec := newRecorder()
+		app.Echo.ServeHTTP(rec, req)
+		if rec.Code != http.StatusOK {
+			b.Fatal(rec.Code, rec.Body.String())
+		}
+	}
+}

@@ -1,0 +1,34 @@
+package api
+
+import (
+	"log/slog"
+
+	"github.com/labstack/echo/v4"
+
+	"lipidsvc/chem"
+)
+
+// Deps are what the handlers need.
+type Deps struct {
+	Catalogue *chem.Catalogue
+	// Spec is the OpenAPI document served at /openapi.yaml.
+	Spec []byte
+	// Ready reports whether the instance takes traffic.
+	Ready    func() bool
+	Recorder Recorder
+	Logger   *slog.Logger
+}
+
+// Routes registers every route of the API. It is the one place that shows
+// the whole surface; openapi.yaml documents the same list.
+func Routes(e *echo.Echo, d Deps) {
+	if d.Recorder == nil {
+		d.Recorder = NopRecorder{}
+	}
+	e.GET("/healthz", handleLiveness())
+	e.GET("/readyz", handleReadiness(d.Ready))
+	e.GET("/openapi.yaml", handleSpec(d.Spec))
+
+	e.GET("/v1/fatty-acids", handleFattyAcids(d.Catalogue))
+	e.POST("/v1/properties", handleProperties(d.Catalogue, d.Recorder))
+}

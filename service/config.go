@@ -1,0 +1,143 @@
+package service
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"log/slog"
+	"strconv"
+	"strings"
+	"time"
+)
+
+// Config is the service's whole configuration. Every field has a default
+// and can be set with a LIPIDSVC_* environment variable; the listen
+// addresses can also be given as flags, which win.
+type Config struct {
+	// Addr is the API listen address (LIPIDSVC_ADDR).
+	Addr string
+	// MetricsAddr is the internal Prometheus listen address
+	// (LIPIDSVC_METRICS_ADDR); empty disables the metrics server.
+	MetricsAddr string
+	// LogLevel is debug, info, warn or error (LIPIDSVC_LOG_LEVEL).
+	LogLevel slog.Level
+	// BodyLimitBytes caps request bodies (LIPIDSVC_BODY_LIMIT_BYTES).
+	BodyLimitBytes int64
+	// RequestTimeout bounds one request's work (LIPIDSVC_REQUEST_TIMEOUT).
+	RequestTimeout time.Duration
+	// ReadHeaderTimeout, ReadTimeout, WriteTimeout and IdleTimeout are the
+	// http.Server limits (LIPIDSVC_READ_HEADER_TIMEOUT, …).
+	ReadHeaderTimeout, ReadTimeout, WriteTimeout, IdleTimeout time.Duration
+	// DrainDelay is how long the server keeps serving after readiness turns
+	// 503 on SIGTERM, so that load balancers stop routing to it first
+	// (LIPIDSVC_DRAIN_DELAY).
+	DrainDelay time.Duration
+	// ShutdownTimeout bounds the wait for in-flight requests
+	// (LIPIDSVC_SHUTDOWN_TIMEOUT).
+	ShutdownTimeout time.Duration
+}
+
+// DefaultConfig is the configuration with nothing set.
+func DefaultConfig() Config {
+	return Config{
+		Addr:              ":8080",
+		MetricsAddr:       ":9090",
+		LogLevel:          slog.LevelInfo,
+		BodyLimitBytes:    1 << 20,
+		RequestTimeout:    10 * time.Second,
+		ReadHeaderTimeout: 5 * time.Second,
+		ReadTimeout:       15 * time.Second,
+		WriteTimeout:      30 * time.Second,
+		IdleTimeout:       120 * time.Second,
+		DrainDelay:        5 * time.Second,
+		ShutdownTimeout:   15 * time.Second,
+	}
+}
+
+// LoadConfig reads the environment through getenv and the flags in args
+// (without the program name), and validates the result.
+func LoadConfig(args []string, getenv func(string) string) (Config, error) {
+	cfg := DefaultConfig()
+	var errs []error
+	str := func(name string, dst *string) {
+		if v, ok := lookup(getenv, name); ok {
+			*dst = v
+		}
+	}
+	dur := func(name string, dst *time.Duration) {
+		if v, ok := lookup(getenv, name); ok {
+			d, err := time.ParseDuration(v)
+			if err != nil || d < 0 {
+				errs = append(errs, fmt.Errorf("%s: %q is not a non-negative duration such as 10s", name, v))
+				return
+			}
+			*dst = d
+		}
+	}
+	str("LIPIDSVC_ADDR", &cfg.Addr)
+	str("LIPIDSVC_METRICS_ADDR", &cfg.MetricsAddr)
+	if v, ok := lookup(getenv, "LIPIDSVC_LOG_LEVEL"); ok {
+		if err := cfg.LogLevel.UnmarshalText([]byte(v)); err != nil {
+			errs = append(errs, fmt.Errorf("LIPIDSVC_LOG_LEVEL: %q is not debug, info, warn or error", v))
+		}
+	}
+	if v, ok := lookup(getenv, "LIPIDSVC_BODY_LIMIT_BYTES"); ok {
+		n, err := strconv.ParseInt(v, 10, 64)
+		if err != nil || n < 1024 || n > 64<<20 {
+			errs = append(errs, fmt.Errorf("LIPIDSVC_BODY_LIMIT_BYTES: %q is not a whole number from 1024 to 67108864", v))
+		} else {
+			cfg.BodyLimitBytes = n
+		}
+	}
+	dur("LIPIDSVC_REQUEST_TIMEOUT", &cfg.RequestTimeout)
+	dur("LIPIDSVC_READ_HEADER_TIMEOUT", &cfg.ReadHeaderTimeout)
+	dur("LIPIDSVC_READ_TIMEOUT", &cfg.ReadTimeout)
+	dur("LIPIDSVC_WRITE_TIMEOUT", &cfg.WriteTimeout)
+	dur("LIPIDSVC_IDLE_TIMEOUT", &cfg.IdleTimeout)
+	dur("LIPIDSVC_DRAIN_DELAY", &cfg.DrainDelay)
+	dur("LIPIDSVC_SHUTDOWN_TIMEOUT", &cfg.ShutdownTimeout)
+
+	fs := flag.NewFlagSet("lipidsvc", flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	fs.StringVar(&cfg.Addr, "addr", cfg.Addr, "API listen address")
+	fs.StringVar(&cfg.MetricsAddr, "metrics-addr", cfg.MetricsAddr, "metrics listen address (empty disables)")
+	if err := fs.Parse(args); err != nil {
+		errs = append(errs, fmt.Errorf("flags: %w", err))
+	} else if fs.NArg() > 0 {
+		errs = append(errs, fmt.Errorf("flags: unexpected argument %q", fs.Arg(0)))
+	}
+	if cfg.Addr == "" {
+		errs = append(errs, errors.New("LIPIDSVC_ADDR must not be empty"))
+	}
+	if cfg.RequestTimeout <= 0 {
+		errs = append(errs, errors.New("LIPIDSVC_REQUEST_TIMEOUT must be positive"))
+	}
+	if cfg.WriteTimeout > 0 && cfg.WriteTimeout <= cfg.RequestTimeout {
+		errs = append(errs, errors.New("LIPIDSVC_WRITE_TIMEOUT must exceed LIPIDSVC_REQUEST_TIMEOUT, or answers are cut off"))
+	}
+	return cfg, errors.Join(errs...)
+}
+
+func lookup(getenv func(string) string, name string) (string, bool) {
+	v := strings.TrimSpace(getenv(name))
+	return v, v != ""
+}
+
+// LogValue lets the configuration be logged once at start-up; it holds no
+// secrets.
+func (c Config) LogValue() slog.Value {
+	return slog.GroupValue(
+		slog.String("addr", c.Addr),
+		slog.String("metrics_addr", c.MetricsAddr),
+		slog.String("log_level", c.LogLevel.String()),
+		slog.Int64("body_limit_bytes", c.BodyLimitBytes),
+		slog.String("request_timeout", c.RequestTimeout.String()),
+		slog.String("read_header_timeout", c.ReadHeaderTimeout.String()),
+		slog.String("read_timeout", c.ReadTimeout.String()),
+		slog.String("write_timeout", c.WriteTimeout.String()),
+		slog.String("idle_timeout", c.IdleTimeout.String()),
+		slog.String("drain_delay", c.DrainDelay.String()),
+		slog.String("shutdown_timeout", c.ShutdownTimeout.String()),
+	)
+}

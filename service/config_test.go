@@ -1,0 +1,64 @@
+package service
+
+import (
+	"log/slog"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/require"
+)
+
+func env(m map[string]string) func(string) string {
+	return func(k string) string { return m[k] }
+}
+
+func TestConfigDefaults(t *testing.T) {
+	cfg, err := LoadConfig(nil, env(nil))
+	require.NoError(t, err)
+	require.Equal(t, ":8080", cfg.Addr)
+	require.Equal(t, ":9090", cfg.MetricsAddr)
+	require.Equal(t, int64(1<<20), cfg.BodyLimitBytes)
+	require.Equal(t, slog.LevelInfo, cfg.LogLevel)
+}
+
+func TestConfigFromEnvironmentAndFlags(t *testing.T) {
+	cfg, err := LoadConfig([]string{"-addr", "127.0.0.1:1"}, env(map[string]string{
+		"LIPIDSVC_ADDR":             ":7000",
+		"LIPIDSVC_METRICS_ADDR":     "127.0.0.1:7001",
+		"LIPIDSVC_LOG_LEVEL":        "debug",
+		"LIPIDSVC_BODY_LIMIT_BYTES": "2048",
+		"LIPIDSVC_REQUEST_TIMEOUT":  "3s",
+		"LIPIDSVC_DRAIN_DELAY":      "0s",
+	}))
+	require.NoError(t, err)
+	require.Equal(t, "127.0.0.1:1", cfg.Addr, "flags win over the environment")
+	require.Equal(t, "127.0.0.1:7001", cfg.MetricsAddr)
+	require.Equal(t, slog.LevelDebug, cfg.LogLevel)
+	require.Equal(t, int64(2048), cfg.BodyLimitBytes)
+	require.Equal(t, 3*time.Second, cfg.RequestTimeout)
+	require.Zero(t, cfg.DrainDelay)
+}
+
+func TestConfigRejectsBadValues(t *testing.T) {
+	cases := map[string]string{
+		"LIPIDSVC_LOG_LEVEL":        "loud",
+		"LIPIDSVC_BODY_LIMIT_BYTES": "12",
+		"LIPIDSVC_REQUEST_TIMEOUT":  "soon",
+		"LIPIDSVC_WRITE_TIMEOUT":    "1s",
+	}
+	for k, v := range cases {
+		_, err := LoadConfig(nil, env(map[string]string{k: v}))
+		require.Error(t, err, k)
+		require.Contains(t, err.Error(), k)
+	}
+	_, err := LoadConfig([]string{"extra"}, env(nil))
+	require.Error(t, err)
+}
+
+func TestRequestIDValidation(t *testing.T) {
+	require.True(t, validRequestID("lims-42"))
+	require.False(t, validRequestID(""))
+	require.False(t, validRequestID("has space"))
+	require.False(t, validRequestID(string(make([]byte, 129))))
+	require.Len(t, newRequestID(), 32)
+}
