@@ -40,18 +40,21 @@ var (
 	hydroxyRe   = regexp.MustCompile(`^(\d{1,2})?-?oh$`)
 )
 
+// labelFolder folds Greek letters, omega and delta signs and typographic
+// dashes into the ASCII spellings the parser reads. It is read-only.
+var labelFolder = strings.NewReplacer(
+	"α", "alpha", "γ", "gamma", "ω-", "n-", "ω", "n-", "Ω", "n-",
+	"omega-", "n-", "omega ", "n-", "omega", "n-",
+	"δ", "", "Δ", "", "delta", "",
+	"‐", "-", "‑", "-", "‒", "-", "–", "-", "—", "-", "−", "-",
+	"\u00a0", " ", "\t", " ",
+	"alpha ", "alpha-", "gamma ", "gamma-",
+)
+
 // normaliseName folds case, Greek letters and typographic dashes so that
 // names and labels compare reliably.
 func normaliseName(s string) string {
-	s = strings.ToLower(strings.TrimSpace(s))
-	r := strings.NewReplacer(
-		"α", "alpha", "γ", "gamma", "ω-", "n-", "ω", "n-", "omega-", "n-", "omega ", "n-", "omega", "n-",
-		"δ", "", "Δ", "", "delta", "",
-		"‐", "-", "‑", "-", "‒", "-", "–", "-", "—", "-", "−", "-",
-		"\u00a0", " ", "\t", " ",
-		"alpha ", "alpha-", "gamma ", "gamma-",
-	)
-	s = r.Replace(s)
+	s = labelFolder.Replace(strings.ToLower(strings.TrimSpace(s)))
 	return strings.Join(strings.Fields(s), " ")
 }
 
