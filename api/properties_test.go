@@ -225,3 +225,22 @@ func BenchmarkPropertiesHTTP(b *testing.B) {
 		}
 	}
 }
+
+// TestBadLabelsAre422WithSuggestions: unknown and ambiguous labels answer
+// 422, name the label and offer catalogue ids.
+func TestBadLabelsAre422WithSuggestions(t *testing.T) {
+	app := newApp(t)
+	labels := []string{"18:5", "18:1 c10", "18:1 n-5", "20:3", "22:5", "18:1 Δ9", "oleik", "linolenik",
+		"palmitic-ish", "26:0", "18:2 c9", "18:1 cis trans"}
+	require.GreaterOrEqual(t, len(labels), 10)
+	for _, l := range labels {
+		body := fmt.Sprintf(`{"profile":{"acids":[{"acid":"16:0","percent":50},{"acid":%q,"percent":50}]}}`, l)
+		rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: body})
+		require.Equal(t, http.StatusUnprocessableEntity, rec.Code, l)
+		p := decode[api.Problem](t, rec)
+		require.Len(t, p.Errors, 1, l)
+		require.Equal(t, "/profile/acids/1/acid", p.Errors[0].Pointer, l)
+		require.Contains(t, p.Errors[0].Reason, l)
+		require.NotEmpty(t, p.Errors[0].Suggestions, l)
+	}
+}
