@@ -31,4 +31,5 @@ func Routes(e *echo.Echo, d Deps) {
 
 	e.GET("/v1/fatty-acids", handleFattyAcids(d.Catalogue))
 	e.POST("/v1/properties", handleProperties(d.Catalogue, d.Recorder))
+	e.POST("/v1/hydrogen-demand", handleHydrogenDemand(d.Catalogue, d.Recorder))
 }
