@@ -22,6 +22,12 @@ var openapiSpec []byte
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	// After the first signal starts the graceful stop, a second one kills
+	// the process the default way.
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
 	if err := service.Run(ctx, os.Args[1:], os.Getenv, os.Stdout, openapiSpec); err != nil {
 		fmt.Fprintln(os.Stderr, "lipidsvc:", err)
 		os.Exit(1)

@@ -105,6 +105,8 @@ func TestEndToEnd(t *testing.T) {
 	resp.Body.Close()
 	require.Equal(t, http.StatusServiceUnavailable, resp.StatusCode)
 	waitFor("stopped")
+	for range lines { // let the reader reach EOF before Wait closes the pipe
+	}
 	require.NoError(t, cmd.Wait())
 	require.Equal(t, 0, cmd.ProcessState.ExitCode())
 	_, err = http.Get(apiURL + "/healthz")

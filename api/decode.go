@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"net/http"
 	"strings"
 
@@ -63,17 +62,6 @@ func jsonError(err error) *Error {
 			FieldError{Pointer: "", Reason: "unknown field " + name})
 	}
 	return NewError(KindMalformed, "the request body is not valid JSON", FieldError{Pointer: "", Reason: err.Error()})
-}
-
-// finite reports whether every value is a finite float; responses are
-// checked before they are encoded.
-func finite(vs ...float64) bool {
-	for _, v := range vs {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return false
-		}
-	}
-	return true
 }
 
 // respond writes a JSON success body. Encoding fails on NaN or ±Inf, which

@@ -192,10 +192,11 @@ func (a *FattyAcid) OmegaPosition() int {
 
 // OmegaFamily is the nutritional n-x family (3, 6, 7, 9, …) of an all-cis,
 // methylene-interrupted acid, or 0 when the acid belongs to none (saturated,
-// trans-containing, conjugated or unresolved). Nutritional n-3/n-6/n-9 sums
+// trans-containing, conjugated, hydroxy or unresolved). Nutritional n-3/n-6/n-9 sums
 // count cis acids only.
 func (a *FattyAcid) OmegaFamily() int {
-	if !a.AllCis() || a.Conjugated() {
+	// Hydroxy acids (ricinoleic) are not counted in nutritional families.
+	if !a.AllCis() || a.Conjugated() || a.HydroxyPosition > 0 {
 		return 0
 	}
 	return a.OmegaPosition()

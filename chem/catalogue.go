@@ -16,6 +16,8 @@ type Catalogue struct {
 	byName map[string]*FattyAcid
 	// groups lists the entries per "C:D" (and hydroxy flag) shorthand.
 	groups map[groupKey][]*FattyAcid
+	// names[i] are the normalised names of acids[i], for suggestions.
+	names [][]string
 }
 
 type groupKey struct {
@@ -71,7 +73,9 @@ var builtinAcids = []acidDef{
 	{18, 1, "c9", 0, "oleic", "(9Z)-octadec-9-enoic acid", nil, true},
 	{18, 1, "t9", 0, "elaidic", "(9E)-octadec-9-enoic acid", nil, false},
 	{18, 1, "c11", 0, "cis-vaccenic", "(11Z)-octadec-11-enoic acid", []string{"asclepic"}, false},
-	{18, 1, "t11", 0, "vaccenic", "(11E)-octadec-11-enoic acid", []string{"trans-vaccenic"}, false},
+	// "Vaccenic" alone is used for both the trans-11 and the cis-11 acid, so
+	// only the qualified names are accepted.
+	{18, 1, "t11", 0, "trans-vaccenic", "(11E)-octadec-11-enoic acid", nil, false},
 	{18, 1, "t", 0, "", "trans-octadecenoic acids, positions not resolved", []string{"trans-oleic", "total trans 18:1"}, false},
 	{20, 1, "c9", 0, "gadoleic", "(9Z)-icos-9-enoic acid", nil, false},
 	{20, 1, "c11", 0, "gondoic", "(11Z)-icos-11-enoic acid", []string{"eicosenoic"}, true},
@@ -98,14 +102,14 @@ var builtinAcids = []acidDef{
 	{18, 3, "c9,c12,c15", 0, "alpha-linolenic", "(9Z,12Z,15Z)-octadeca-9,12,15-trienoic acid", []string{"linolenic", "ala"}, true},
 	{18, 3, "t", 0, "", "trans-octadecatrienoic acids, positions not resolved", []string{"trans-linolenic"}, false},
 	{20, 3, "c8,c11,c14", 0, "dihomo-gamma-linolenic", "(8Z,11Z,14Z)-icosa-8,11,14-trienoic acid", []string{"dgla"}, false},
-	{20, 3, "c11,c14,c17", 0, "", "(11Z,14Z,17Z)-icosa-11,14,17-trienoic acid", []string{"eicosatrienoic"}, false},
+	{20, 3, "c11,c14,c17", 0, "", "(11Z,14Z,17Z)-icosa-11,14,17-trienoic acid", nil, false},
 	{18, 4, "c6,c9,c12,c15", 0, "stearidonic", "(6Z,9Z,12Z,15Z)-octadeca-6,9,12,15-tetraenoic acid", []string{"sda"}, true},
 	{20, 4, "c5,c8,c11,c14", 0, "arachidonic", "(5Z,8Z,11Z,14Z)-icosa-5,8,11,14-tetraenoic acid", []string{"ara", "aa"}, true},
-	{20, 4, "c8,c11,c14,c17", 0, "", "(8Z,11Z,14Z,17Z)-icosa-8,11,14,17-tetraenoic acid", []string{"eicosatetraenoic"}, false},
+	{20, 4, "c8,c11,c14,c17", 0, "", "(8Z,11Z,14Z,17Z)-icosa-8,11,14,17-tetraenoic acid", nil, false},
 	{20, 5, "c5,c8,c11,c14,c17", 0, "eicosapentaenoic", "(5Z,8Z,11Z,14Z,17Z)-icosa-5,8,11,14,17-pentaenoic acid", []string{"epa", "timnodonic"}, true},
 	{22, 4, "c7,c10,c13,c16", 0, "adrenic", "(7Z,10Z,13Z,16Z)-docosa-7,10,13,16-tetraenoic acid", nil, true},
 	{22, 5, "c4,c7,c10,c13,c16", 0, "osbond", "(4Z,7Z,10Z,13Z,16Z)-docosa-4,7,10,13,16-pentaenoic acid", []string{"dpa n-6"}, false},
-	{22, 5, "c7,c10,c13,c16,c19", 0, "clupanodonic", "(7Z,10Z,13Z,16Z,19Z)-docosa-7,10,13,16,19-pentaenoic acid", []string{"dpa", "docosapentaenoic"}, false},
+	{22, 5, "c7,c10,c13,c16,c19", 0, "clupanodonic", "(7Z,10Z,13Z,16Z,19Z)-docosa-7,10,13,16,19-pentaenoic acid", []string{"dpa n-3"}, false},
 	{22, 6, "c4,c7,c10,c13,c16,c19", 0, "docosahexaenoic", "(4Z,7Z,10Z,13Z,16Z,19Z)-docosa-4,7,10,13,16,19-hexaenoic acid", []string{"dha", "cervonic"}, true},
 }
 
@@ -126,6 +130,7 @@ func NewCatalogue() *Catalogue {
 			panic("chem: duplicate catalogue id " + a.ID)
 		}
 		c.acids = append(c.acids, a)
+		c.names = append(c.names, a.allNames())
 		c.byID[strings.ToLower(a.ID)] = a
 		k := groupKey{a.Carbons, a.DoubleBondCount, a.HydroxyPosition > 0}
 		c.groups[k] = append(c.groups[k], a)

@@ -32,6 +32,8 @@ func TestOmegaClasses(t *testing.T) {
 		"stearidonic": 3, "petroselinic": 12,
 		// Trans and conjugated acids belong to no nutritional family.
 		"elaidic": 0, "rumenic": 0, "linoelaidic": 0, "stearic": 0, "18:1 trans": 0,
+		// A hydroxy acid is not counted in a nutritional family.
+		"ricinoleic": 0,
 	}
 	for label, want := range cases {
 		require.Equal(t, want, mustAcid(t, cat, label).OmegaFamily(), label)

@@ -45,17 +45,22 @@ var (
 var labelFolder = strings.NewReplacer(
 	"α", "alpha", "γ", "gamma", "ω-", "n-", "ω", "n-", "Ω", "n-",
 	"omega-", "n-", "omega ", "n-", "omega", "n-",
-	"δ", "", "Δ", "", "delta", "",
+	"δ", " ", "Δ", " ", "delta", " ",
 	"‐", "-", "‑", "-", "‒", "-", "–", "-", "—", "-", "−", "-",
 	"\u00a0", " ", "\t", " ",
-	"alpha ", "alpha-", "gamma ", "gamma-",
 )
+
+// labelSpacer joins Greek-letter prefixes to the name they qualify.
+var labelSpacer = strings.NewReplacer("alpha ", "alpha-", "gamma ", "gamma-")
 
 // normaliseName folds case, Greek letters and typographic dashes so that
 // names and labels compare reliably.
 func normaliseName(s string) string {
 	s = labelFolder.Replace(strings.ToLower(strings.TrimSpace(s)))
-	return strings.Join(strings.Fields(s), " ")
+	// A second pass joins what the first produced ("α linolenic" →
+	// "alpha linolenic" → "alpha-linolenic").
+	s = strings.Join(strings.Fields(s), " ")
+	return labelSpacer.Replace(s)
 }
 
 // query is what a shorthand label says about an acid.
@@ -75,6 +80,11 @@ type query struct {
 // "methyl linoleate"), or a catalogue ID. An unknown or ambiguous label is a
 // KindInvalid *Error carrying suggestions.
 func (c *Catalogue) Resolve(label string) (Resolution, error) {
+	return c.resolve(label, true)
+}
+
+// resolve is Resolve with the (costlier) search for suggestions optional.
+func (c *Catalogue) resolve(label string, suggest bool) (Resolution, error) {
 	n := normaliseName(label)
 	if n == "" {
 		return Resolution{}, Errorf(KindInvalid, "empty fatty-acid label")
@@ -90,15 +100,15 @@ func (c *Catalogue) Resolve(label string) (Resolution, error) {
 	}
 	m := shorthandRe.FindStringSubmatch(n)
 	if m == nil {
-		return Resolution{}, c.unknown(label, nil)
+		return Resolution{}, c.unknown(label, nil, suggest)
 	}
 	q := query{}
 	q.carbons, _ = strconv.Atoi(m[1])
 	q.d, _ = strconv.Atoi(m[2])
 	if err := q.parseQualifiers(m[3]); err != nil {
-		return Resolution{}, c.unknown(label, &q)
+		return Resolution{}, c.unknown(label, &q, suggest)
 	}
-	return c.match(label, q)
+	return c.match(label, q, suggest)
 }
 
 // lookupName tries the name as given and in its ester and "-ate" forms
@@ -163,7 +173,12 @@ func (q *query) parseToken(tok string) error {
 		return nil
 	}
 	if m := omegaRe.FindStringSubmatch(tok); m != nil {
-		q.omega, _ = strconv.Atoi(m[1])
+		omega, _ := strconv.Atoi(m[1])
+		// Two families ("C18:1n9/n7") name co-eluting isomers, not one acid.
+		if omega == 0 || (q.omega != 0 && q.omega != omega) {
+			return fmt.Errorf("more than one n-x family, or n-0")
+		}
+		q.omega = omega
 		if m[2] != "" {
 			return q.setGeometry(geometryWord(m[2]))
 		}
@@ -210,13 +225,13 @@ func (q *query) setGeometry(g Geometry) error {
 }
 
 // match picks the catalogue entry a parsed shorthand label names.
-func (c *Catalogue) match(label string, q query) (Resolution, error) {
+func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, error) {
 	group := c.groups[groupKey{q.carbons, q.d, q.hydroxy}]
 	if len(group) == 0 {
-		return Resolution{}, c.unknown(label, &q)
+		return Resolution{}, c.unknown(label, &q, suggest)
 	}
 	if len(q.bonds) > 0 && len(q.bonds) != q.d {
-		return Resolution{}, c.unknown(label, &q)
+		return Resolution{}, c.unknown(label, &q, suggest)
 	}
 	var cands []*FattyAcid
 	for _, a := range group {
@@ -228,7 +243,7 @@ func (c *Catalogue) match(label string, q query) (Resolution, error) {
 	case len(cands) == 1:
 		return Resolution{Acid: cands[0]}, nil
 	case len(cands) == 0:
-		return Resolution{}, c.unknown(label, &q)
+		return Resolution{}, c.unknown(label, &q, suggest)
 	}
 	// Several isomers fit. Positions unresolved but trans named: the lumped
 	// trans entry is what the laboratory reported.
@@ -323,8 +338,11 @@ func (q *query) matches(a *FattyAcid) bool {
 
 // unknown builds the error for a label that names no catalogue acid, with
 // the closest known labels as suggestions.
-func (c *Catalogue) unknown(label string, q *query) *Error {
-	sugg := c.suggest(normaliseName(label), q)
+func (c *Catalogue) unknown(label string, q *query, suggest bool) *Error {
+	var sugg []string
+	if suggest {
+		sugg = c.suggest(normaliseName(label), q)
+	}
 	msg := fmt.Sprintf("unknown fatty-acid label %q", label)
 	if len(sugg) > 0 {
 		msg += "; closest known: " + strings.Join(sugg, ", ")
@@ -333,6 +351,9 @@ func (c *Catalogue) unknown(label string, q *query) *Error {
 	e.Suggestions = sugg
 	return e
 }
+
+// maxSuggestRunes bounds the edit-distance work for one label.
+const maxSuggestRunes = 32
 
 // suggest ranks catalogue IDs and names by closeness to the label: first the
 // isomers of the same C:D, then by edit distance.
@@ -372,9 +393,12 @@ func (c *Catalogue) suggest(n string, q *query) []string {
 		dist int
 	}
 	var all []scored
-	for _, a := range c.acids {
+	if utf8.RuneCountInString(n) > maxSuggestRunes {
+		n = string([]rune(n)[:maxSuggestRunes])
+	}
+	for i, a := range c.acids {
 		best := levenshtein(n, strings.ToLower(a.ID))
-		for _, name := range a.allNames() {
+		for _, name := range c.names[i] {
 			if d := levenshtein(n, name); d < best {
 				best = d
 			}

@@ -40,6 +40,9 @@ const DefaultSumTolerance = 0.5
 // (floating-point noise in the laboratory's export).
 const exactSum = 1e-9
 
+// maxSuggestedLabels is how many bad labels of one profile get suggestions.
+const maxSuggestedLabels = 10
+
 // Entry is one line of a laboratory profile as received.
 type Entry struct {
 	Label   string
@@ -112,7 +115,9 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 			continue
 		}
 		p.InputSum += e.Percent
-		r, err := cat.Resolve(e.Label)
+		// Suggestions cost an edit-distance search; a profile full of bad
+		// labels gets them for the first few only.
+		r, err := cat.resolve(e.Label, len(bad.Fields) < maxSuggestedLabels)
 		if err != nil {
 			ce, _ := AsError(err)
 			bad.Fields = append(bad.Fields, FieldError{

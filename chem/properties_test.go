@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"sort"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -81,13 +82,18 @@ func pureProfile(t testing.TB, cat *Catalogue, label string) *Profile {
 	return p
 }
 
-// vectorProfile builds a check vector in a fixed order so that warnings are
-// deterministic.
+// vectorProfile builds a check vector with its labels sorted, so that the
+// order of components and warnings is deterministic.
 func vectorProfile(t testing.TB, cat *Catalogue, acids map[string]float64) *Profile {
 	t.Helper()
+	labels := make([]string, 0, len(acids))
+	for label := range acids {
+		labels = append(labels, label)
+	}
+	sort.Strings(labels)
 	var entries []Entry
-	for label, pct := range acids {
-		entries = append(entries, Entry{label, pct})
+	for _, label := range labels {
+		entries = append(entries, Entry{label, acids[label]})
 	}
 	p, err := NewProfile(cat, BasisFAMEWeight, entries, DefaultSumTolerance)
 	require.NoError(t, err)

@@ -18,7 +18,7 @@ type Config struct {
 	// Addr is the API listen address (LIPIDSVC_ADDR).
 	Addr string
 	// MetricsAddr is the internal Prometheus listen address
-	// (LIPIDSVC_METRICS_ADDR); empty disables the metrics server.
+	// (LIPIDSVC_METRICS_ADDR); "off" disables the metrics server.
 	MetricsAddr string
 	// LogLevel is debug, info, warn or error (LIPIDSVC_LOG_LEVEL).
 	LogLevel slog.Level
@@ -77,6 +77,9 @@ func LoadConfig(args []string, getenv func(string) string) (Config, error) {
 	}
 	str("LIPIDSVC_ADDR", &cfg.Addr)
 	str("LIPIDSVC_METRICS_ADDR", &cfg.MetricsAddr)
+	if cfg.MetricsAddr == "off" {
+		cfg.MetricsAddr = ""
+	}
 	if v, ok := lookup(getenv, "LIPIDSVC_LOG_LEVEL"); ok {
 		if err := cfg.LogLevel.UnmarshalText([]byte(v)); err != nil {
 			errs = append(errs, fmt.Errorf("LIPIDSVC_LOG_LEVEL: %q is not debug, info, warn or error", v))

@@ -39,6 +39,17 @@ func TestConfigFromEnvironmentAndFlags(t *testing.T) {
 	require.Zero(t, cfg.DrainDelay)
 }
 
+func TestConfigMetricsOff(t *testing.T) {
+	cfg, err := LoadConfig(nil, env(map[string]string{"LIPIDSVC_METRICS_ADDR": "off"}))
+	require.NoError(t, err)
+	require.Empty(t, cfg.MetricsAddr)
+}
+
+func TestMethodLabelBounded(t *testing.T) {
+	require.Equal(t, "POST", methodLabel("POST"))
+	require.Equal(t, "OTHER", methodLabel("FOO1"))
+}
+
 func TestConfigRejectsBadValues(t *testing.T) {
 	cases := map[string]string{
 		"LIPIDSVC_LOG_LEVEL":        "loud",

@@ -31,9 +31,9 @@ func NewMetrics() *Metrics {
 		}, []string{"method", "route", "code"}),
 		duration: prometheus.NewHistogramVec(prometheus.HistogramOpts{
 			Name:    "lipidsvc_http_request_duration_seconds",
-			Help:    "Time to answer an HTTP request, by method and route template.",
+			Help:    "Time to answer an HTTP request, by method, route template and status code.",
 			Buckets: []float64{0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 0.5, 1, 2.5, 5, 10},
-		}, []string{"method", "route"}),
+		}, []string{"method", "route", "code"}),
 		inFlight: prometheus.NewGauge(prometheus.GaugeOpts{
 			Name: "lipidsvc_http_requests_in_flight",
 			Help: "HTTP requests being served.",
@@ -63,8 +63,21 @@ func (m *Metrics) Calculation(kind string) { m.calculations.WithLabelValues(kind
 func (m *Metrics) Rejection(slug string) { m.rejections.WithLabelValues(slug).Inc() }
 
 func (m *Metrics) observe(method, route string, code int, elapsed time.Duration) {
-	m.requests.WithLabelValues(method, route, strconv.Itoa(code)).Inc()
-	m.duration.WithLabelValues(method, route).Observe(elapsed.Seconds())
+	method = methodLabel(method)
+	c := strconv.Itoa(code)
+	m.requests.WithLabelValues(method, route, c).Inc()
+	m.duration.WithLabelValues(method, route, c).Observe(elapsed.Seconds())
+}
+
+// methodLabel keeps label cardinality bounded: any method outside the
+// standard set is counted as OTHER.
+func methodLabel(m string) string {
+	switch m {
+	case http.MethodGet, http.MethodHead, http.MethodPost, http.MethodPut, http.MethodPatch,
+		http.MethodDelete, http.MethodOptions, http.MethodConnect, http.MethodTrace:
+		return m
+	}
+	return "OTHER"
 }
 
 // Handler serves the registry in the Prometheus exposition format.

@@ -85,7 +85,7 @@ func observe(logger *slog.Logger, m *Metrics) echo.MiddlewareFunc {
 				level = slog.LevelDebug
 			}
 			logger.LogAttrs(c.Request().Context(), level, "request",
-				slog.String("method", c.Request().Method),
+				slog.String("method", methodLabel(c.Request().Method)),
 				slog.String("route", route),
 				slog.Int("status", status),
 				slog.Float64("duration_ms", float64(elapsed.Microseconds())/1000),

@@ -104,12 +104,18 @@ func validateRequests(doc *openapi3.T) echo.MiddlewareFunc {
 	}
 }
 
+// checkMediaType accepts application/json (any charset parameter) with no
+// content coding; anything else is 415 (RFC 9110 §15.5.16, RFC 7694).
 func checkMediaType(req *http.Request) error {
 	ct := req.Header.Get(echo.HeaderContentType)
 	mt, _, err := mime.ParseMediaType(ct)
-	if ct == "" || err != nil || (mt != "application/json" && !strings.HasSuffix(mt, "+json")) {
+	if ct == "" || err != nil || mt != "application/json" {
 		return api.NewError(api.KindUnsupportedMedia,
 			fmt.Sprintf("the request body must be application/json, not %q", ct))
+	}
+	if enc := req.Header.Get("Content-Encoding"); enc != "" && !strings.EqualFold(enc, "identity") {
+		return api.NewError(api.KindUnsupportedMedia,
+			fmt.Sprintf("the request body must not be encoded (Content-Encoding %q)", enc))
 	}
 	return nil
 }

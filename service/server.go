@@ -123,7 +123,7 @@ func Run(ctx context.Context, args []string, getenv func(string) string, stdout 
 
 	app.SetReady(false)
 	if serveErr == nil && cfg.DrainDelay > 0 {
-		logger.Info("draining", "delay", cfg.DrainDelay)
+		logger.Info("draining", "delay", cfg.DrainDelay.String())
 		time.Sleep(cfg.DrainDelay)
 	}
 	shutdownCtx, cancel := context.WithTimeout(context.Background(), cfg.ShutdownTimeout)
