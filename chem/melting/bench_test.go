@@ -1,0 +1,58 @@
+package melting
+
+import "testing"
+
+// twentyAcids is a made-up 20-acid profile (a blend-like spread of major and
+// minor acids) whose full random distribution has 4200 lumped species.
+func twentyAcids(b *testing.B) []acidPct {
+	b.Helper()
+	return []acidPct{{"8:0", 0.7}, {"10:0", 0.8}, {"12:0", 1.5}, {"14:0", 4}, {"15:0", 0.6}, {"16:0", 20}, {"16:1", 3},
+		{"17:0", 0.8}, {"18:0", 8}, {"18:1", 28.2}, {"18:1 t", 0.2}, {"18:2", 20}, {"18:3", 4}, {"20:0", 1}, {"20:1", 2},
+		{"20:5", 0.6}, {"22:0", 1}, {"22:1", 0.8}, {"22:6", 0.6}, {"24:0", 2.2}}
+}
+
+// BenchmarkMeltTwentyAcidRandom measures one full default curve (0–60 °C
+// plus the reporting points, slip and clear points, main species) for a
+// 20-acid full random distribution, pooled at the default floor.
+func BenchmarkMeltTwentyAcidRandom(b *testing.B) {
+	p := profileOf(b, twentyAcids(b)...)
+	opt := Options{Composition: CompositionOptions{Distribution: FullRandom}}
+	r, err := Melt(p, opt)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportMetric(float64(r.SpeciesCount), "species")
+	b.ReportMetric(float64(r.ComponentCount), "components")
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Melt(p, opt); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkSlipMeltingPointPalm measures the cheap slip-point function a
+// hardening root finder calls.
+func BenchmarkSlipMeltingPointPalm(b *testing.B) {
+	p := palmLike(b)
+	opt := Options{Composition: CompositionOptions{SN2: SN2Palm}}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, _, err := SlipMeltingPointC(p, opt); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkMeltTwentyAcidIdealSolidSolution is the same curve with the
+// Rachford–Rice solver.
+func BenchmarkMeltTwentyAcidIdealSolidSolution(b *testing.B) {
+	p := profileOf(b, twentyAcids(b)...)
+	opt := Options{SolidModel: IdealSolidSolution, Composition: CompositionOptions{Distribution: FullRandom}}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Melt(p, opt); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -1,0 +1,304 @@
+package melting
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"lipidsvc/chem"
+)
+
+// Measurements are a fat's measured melting data for [Calibrate].
+type Measurements struct {
+	// SFC are solid fat contents measured by pulsed NMR (AOCS Cd 16b-93,
+	// ISO 8292-1), mass %, at temperatures in [MinTemperatureC,
+	// MaxTemperatureC]. Field "sfc_points".
+	SFC []SFCPoint
+	// SlipMeltingPointC is a measured slip melting point (AOCS Cc 3-25,
+	// ISO 6321), used when HasSlipMeltingPoint. Field "slip_melting_point_c".
+	SlipMeltingPointC   float64
+	HasSlipMeltingPoint bool
+}
+
+// CalibrationError summarises how well the model matches the measurements.
+type CalibrationError struct {
+	// SFCPoints is the number of SFC points compared; the errors are
+	// predicted minus measured, in SFC percentage points.
+	SFCPoints             int
+	SFCRMSErrorPercent    float64
+	SFCMaxAbsErrorPercent float64
+	// SlipErrorK is predicted minus measured slip melting point, K (zero
+	// without a measured slip point; NaN when the model has none).
+	SlipErrorK float64
+}
+
+// CalibrationReport is the result of [Calibrate].
+type CalibrationReport struct {
+	// Calibration is the fitted correction; pass it as Options.Calibration.
+	Calibration Calibration
+	// Before is the uncalibrated model's error, After the calibrated one's.
+	Before, After CalibrationError
+	Warnings      []chem.Warning
+}
+
+// Calibration limits: the slip threshold is fitted within
+// [MinCalibratedThresholdPercent, MaxCalibratedThresholdPercent].
+const (
+	MinCalibratedThresholdPercent = 0.5
+	MaxCalibratedThresholdPercent = 15.0
+)
+
+// Calibrate fits a correction of the melting model to one fat's
+// measurements:
+//
+//   - With SFC points, the temperature shift ΔT (added to every TAG melting
+//     point, within ±MaxCalibrationShiftK) minimises the sum of squared SFC
+//     errors: a 0.25 K scan refined by golden-section search. If a slip
+//     melting point is also given, the slip threshold becomes the SFC the
+//     shifted model predicts at that temperature (clamped to 0.5–15 %).
+//   - With only a slip melting point, the threshold stays that of opt and ΔT
+//     is found by root finding so that the predicted slip melting point
+//     equals the measured one (the slip point rises monotonically with ΔT).
+//
+// Any calibration already in opt is ignored; the report gives the error
+// before and after. Errors are KindInvalid *chem.Error values for bad input
+// and the context's error if ctx ends. Measurements the model cannot match
+// within the limits are not an error: the parameter stays at its limit and
+// a WarnCalibrationLimit warning says so.
+func Calibrate(ctx context.Context, p *chem.Profile, opt Options, m Measurements) (*CalibrationReport, error) {
+	if err := m.validate(); err != nil {
+		return nil, err
+	}
+	opt.Calibration = Calibration{}
+	f, err := Prepare(p, opt)
+	if err != nil {
+		return nil, err
+	}
+	c := &calibrator{ctx: ctx, f: f, m: m, w: f.mixture.newWorkspace()}
+	rep := &CalibrationReport{}
+	base := Calibration{SlipThresholdPercent: f.opt.SlipThresholdPercent}
+	if rep.Before, err = c.errors(base); err != nil {
+		return nil, err
+	}
+	cal := base
+	switch {
+	case len(m.SFC) > 0:
+		if cal.TemperatureShiftK, err = c.fitShiftToSFC(); err != nil {
+			return nil, err
+		}
+		if m.HasSlipMeltingPoint {
+			v, err := f.mixture.sfc(f.opt.SolidModel, m.SlipMeltingPointC+zeroCelsiusK, cal.TemperatureShiftK, f.opt.MaxIterations, c.w)
+			if err != nil {
+				return nil, err
+			}
+			cal.SlipThresholdPercent = math.Min(math.Max(v, MinCalibratedThresholdPercent), MaxCalibratedThresholdPercent)
+			if cal.SlipThresholdPercent != v {
+				rep.Warnings = append(rep.Warnings, limitWarning(fmt.Sprintf(
+					"the calibrated model has %.3g %% solid at the measured slip melting point; the threshold was limited to %.3g %%",
+					v, cal.SlipThresholdPercent), "slip_threshold_percent"))
+			}
+		}
+	default:
+		if cal.TemperatureShiftK, err = c.fitShiftToSlip(cal.SlipThresholdPercent); err != nil {
+			return nil, err
+		}
+	}
+	if math.Abs(cal.TemperatureShiftK) >= MaxCalibrationShiftK-1e-9 {
+		rep.Warnings = append(rep.Warnings, limitWarning(fmt.Sprintf(
+			"the temperature shift reached its limit of %+.3g K; the model cannot match these measurements well", cal.TemperatureShiftK),
+			"temperature_shift_k"))
+	}
+	if rep.After, err = c.errors(cal); err != nil {
+		return nil, err
+	}
+	if !(len(m.SFC) > 0 && m.HasSlipMeltingPoint) {
+		cal.SlipThresholdPercent = 0 // not calibrated: Options.SlipThresholdPercent stays in force
+	}
+	rep.Calibration = cal
+	return rep, nil
+}
+
+func limitWarning(msg, field string) chem.Warning {
+	return chem.Warning{Code: WarnCalibrationLimit, Message: msg, Path: []any{"calibration", field}}
+}
+
+func (m Measurements) validate() error {
+	bad := chem.Errorf(chem.KindInvalid, "the measurements are invalid")
+	if len(m.SFC) == 0 && !m.HasSlipMeltingPoint {
+		bad.WithField("give SFC points, a slip melting point or both", "measurements")
+	}
+	if len(m.SFC) > MaxTemperatures {
+		bad.WithField(fmt.Sprintf("at most %d points", MaxTemperatures), "sfc_points")
+	}
+	for i, pt := range m.SFC {
+		if !(pt.TemperatureC >= MinTemperatureC && pt.TemperatureC <= MaxTemperatureC) {
+			bad.WithField(fmt.Sprintf("temperature must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "sfc_points", i, "temperature_c")
+		}
+		if !(pt.SFCPercent >= 0 && pt.SFCPercent <= 100) {
+			bad.WithField("SFC must be from 0 to 100 %", "sfc_points", i, "sfc_percent")
+		}
+	}
+	if m.HasSlipMeltingPoint && !(m.SlipMeltingPointC >= MinTemperatureC && m.SlipMeltingPointC <= MaxTemperatureC) {
+		bad.WithField(fmt.Sprintf("must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "slip_melting_point_c")
+	}
+	if len(bad.Fields) > 0 {
+		if len(bad.Fields) == 1 {
+			bad.Message = bad.Fields[0].Reason
+		}
+		return bad
+	}
+	return nil
+}
+
+type calibrator struct {
+	ctx context.Context
+	f   *Fat
+	m   Measurements
+	w   *workspace
+}
+
+// sse is the sum of squared SFC errors at shift s.
+func (c *calibrator) sse(s float64) (float64, error) {
+	var sum float64
+	for _, pt := range c.m.SFC {
+		v, err := c.f.mixture.sfc(c.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, s, c.f.opt.MaxIterations, c.w)
+		if err != nil {
+			return 0, err
+		}
+		sum += (v - pt.SFCPercent) * (v - pt.SFCPercent)
+	}
+	return sum, nil
+}
+
+func (c *calibrator) fitShiftToSFC() (float64, error) {
+	best, bestV := 0.0, math.Inf(1)
+	for s := -MaxCalibrationShiftK; s <= MaxCalibrationShiftK+1e-9; s += 0.25 {
+		if err := c.ctx.Err(); err != nil {
+			return 0, err
+		}
+		v, err := c.sse(s)
+		if err != nil {
+			return 0, err
+		}
+		if v < bestV {
+			best, bestV = s, v
+		}
+	}
+	// Golden-section refinement on [best − 0.25, best + 0.25].
+	lo, hi := math.Max(best-0.25, -MaxCalibrationShiftK), math.Min(best+0.25, MaxCalibrationShiftK)
+	const g = 0.6180339887498949
+	a, b := hi-g*(hi-lo), lo+g*(hi-lo)
+	fa, err := c.sse(a)
+	if err != nil {
+		return 0, err
+	}
+	fb, err := c.sse(b)
+	if err != nil {
+		return 0, err
+	}
+	for hi-lo > 1e-6 {
+		if fa < fb {
+			hi, b, fb = b, a, fa
+			a = hi - g*(hi-lo)
+			if fa, err = c.sse(a); err != nil {
+				return 0, err
+			}
+		} else {
+			lo, a, fa = a, b, fb
+			b = lo + g*(hi-lo)
+			if fb, err = c.sse(b); err != nil {
+				return 0, err
+			}
+		}
+	}
+	s := 0.5 * (lo + hi)
+	if v, err := c.sse(s); err == nil && v > bestV {
+		s = best
+	}
+	return s, nil
+}
+
+// slip is the predicted slip melting point (K) at shift s and threshold thr.
+func (c *calibrator) slip(s, thr float64) (float64, bool, error) {
+	g := *c.f
+	g.opt.Calibration = Calibration{TemperatureShiftK: s, SlipThresholdPercent: thr}
+	g.mixture = c.f.mixture.shifted(s)
+	return g.slipPoint(g.mixture.newWorkspace(), nil)
+}
+
+func (c *calibrator) fitShiftToSlip(thr float64) (float64, error) {
+	target := c.m.SlipMeltingPointC + zeroCelsiusK
+	lo, hi := -MaxCalibrationShiftK, MaxCalibrationShiftK
+	flo, _, err := c.slip(lo, thr)
+	if err != nil {
+		return 0, err
+	}
+	fhi, _, err := c.slip(hi, thr)
+	if err != nil {
+		return 0, err
+	}
+	if target <= flo {
+		return lo, nil
+	}
+	if target >= fhi {
+		return hi, nil
+	}
+	for hi-lo > 1e-6 {
+		if err := c.ctx.Err(); err != nil {
+			return 0, err
+		}
+		mid := 0.5 * (lo + hi)
+		v, _, err := c.slip(mid, thr)
+		if err != nil {
+			return 0, err
+		}
+		if v < target {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return 0.5 * (lo + hi), nil
+}
+
+// errors evaluates the model with calibration cal against the measurements.
+func (c *calibrator) errors(cal Calibration) (CalibrationError, error) {
+	var e CalibrationError
+	var sq float64
+	for _, pt := range c.m.SFC {
+		v, err := c.f.mixture.sfc(c.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, cal.TemperatureShiftK, c.f.opt.MaxIterations, c.w)
+		if err != nil {
+			return e, err
+		}
+		d := v - pt.SFCPercent
+		sq += d * d
+		e.SFCMaxAbsErrorPercent = math.Max(e.SFCMaxAbsErrorPercent, math.Abs(d))
+		e.SFCPoints++
+	}
+	if e.SFCPoints > 0 {
+		e.SFCRMSErrorPercent = math.Sqrt(sq / float64(e.SFCPoints))
+	}
+	if c.m.HasSlipMeltingPoint {
+		t, ok, err := c.slip(cal.TemperatureShiftK, cal.SlipThresholdPercent)
+		if err != nil {
+			return e, err
+		}
+		e.SlipErrorK = math.NaN()
+		if ok {
+			e.SlipErrorK = t - zeroCelsiusK - c.m.SlipMeltingPointC
+		}
+	}
+	return e, nil
+}
+
+// shifted returns a copy of m with every melting point raised by s.
+func (m *Mixture) shifted(s float64) *Mixture {
+	if s == 0 {
+		return m
+	}
+	out := &Mixture{}
+	for i := range m.z {
+		out.add(m.z[i], m.mass[i], m.tm[i]+s, m.a[i]*chem.GasConstant/1000)
+	}
+	return out
+}

@@ -1,0 +1,509 @@
+package melting
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"lipidsvc/chem"
+)
+
+// Distribution is how acids are placed on the glycerol positions.
+type Distribution int
+
+const (
+	// Positional is the 1,3-random-2-random distribution (Vander Wal 1960;
+	// Coleman 1961): sn-2 has its own composition b, sn-1 and sn-3 share
+	// a = (3x − b)/2, and P(i,j,k) = a_i·b_j·a_k. It needs b_i ≤ 3·x_i.
+	Positional Distribution = iota + 1
+	// FullRandom places every acid on every position with its overall mole
+	// fraction: P(i,j,k) = x_i·x_j·x_k. It fits chemically interesterified
+	// fats and is a fair default for tallow (DOMAIN §9).
+	FullRandom
+)
+
+// DefaultDistribution is [Positional]: natural vegetable fats are not
+// randomly distributed, and the sn-2 rule can be chosen.
+const DefaultDistribution = Positional
+
+// String gives the API name: "sn13_random_sn2_random", "full_random".
+func (d Distribution) String() string {
+	switch d {
+	case Positional:
+		return "sn13_random_sn2_random"
+	case FullRandom:
+		return "full_random"
+	default:
+		return "unknown"
+	}
+}
+
+// SN2Estimate is where the sn-2 composition of a [Positional] distribution
+// comes from.
+type SN2Estimate int
+
+const (
+	// SN2SeedOil is the seed-oil rule (DOMAIN §9): saturated acids and C20+
+	// acids stay out of sn-2; the unsaturated C18 acids fill it in
+	// proportion to their amounts; if they are less than a third of all
+	// chains they all go to sn-2 and the other acids fill the rest in
+	// proportion to their amounts.
+	SN2SeedOil SN2Estimate = iota + 1
+	// SN2Palm is our palm rule: as the seed-oil rule, but saturated and C20+
+	// acids compete for sn-2 with a selectivity of [PalmSN2Selectivity]
+	// relative to the unsaturated acids of C18 and shorter. See
+	// PalmSN2Selectivity for its calibration.
+	SN2Palm
+	// SN2Supplied takes the sn-2 composition from CompositionOptions.SN2Profile:
+	// a measured pancreatic-lipase analysis, or the sn-2 pool of a hardening
+	// forecast that hardened the sn-2 and sn-1,3 pools separately.
+	SN2Supplied
+	// SN2Enrichment uses caller-given enrichment factors E_i
+	// (CompositionOptions.EnrichmentFactors, aligned with the profile's
+	// components): b_i ∝ E_i·x_i, no acid above 3·x_i, acids with E_i = 0
+	// filling any remainder in proportion to x_i.
+	SN2Enrichment
+)
+
+// DefaultSN2Estimate is [SN2SeedOil], DOMAIN §9's rule for seed oils; choose
+// SN2Palm for palm oil and its fractions.
+const DefaultSN2Estimate = SN2SeedOil
+
+// String gives the API name.
+func (e SN2Estimate) String() string {
+	switch e {
+	case SN2SeedOil:
+		return "seed_oil_rule"
+	case SN2Palm:
+		return "palm_rule"
+	case SN2Supplied:
+		return "supplied"
+	case SN2Enrichment:
+		return "enrichment_factors"
+	default:
+		return "unknown"
+	}
+}
+
+// PalmSN2Selectivity is the sn-2 selectivity of saturated and C20+ acids
+// relative to unsaturated acids of C18 and shorter in the palm rule. With it
+// a palm oil of about 50 % saturated acids carries about 13 % saturated acids
+// at sn-2, as reported for palm oil (sn-2: 16:0 11 %, 18:0 2 %, 18:1 65 %,
+// 18:2 22 %) [Ong A.S.H. & Goh S.H., Food Nutr. Bull. 23(1):11 (2002),
+// Table 2]; DOMAIN §9 recalls 10–13 % palmitic acid at sn-2 [memory].
+// TestPalmRuleReproducesPublishedSN2 checks the calibration.
+const PalmSN2Selectivity = 0.14
+
+// DefaultPoolFloorMoleFraction is the mole fraction below which species are
+// pooled (see CompositionOptions.PoolFloorMoleFraction). At 1e-4 the pooled
+// species of palm, palm kernel and coconut oil carry well under 3 % of the
+// mass; pooling by melting point changes the slip melting point and clear point
+// of the test fats by at most 0.25 K and their SFC by at most 0.3 points
+// (TestPoolingChangesLittle), and it keeps a 20-acid curve fast.
+const DefaultPoolFloorMoleFraction = 1e-4
+
+// poolBinK is the width of the melting-point bins pooled species share.
+const poolBinK = 2.0
+
+// maxSN2Overshoot is how far (mole fraction) a supplied sn-2 composition may
+// exceed 3·x_i before it is rejected rather than clipped.
+const maxSN2Overshoot = 0.01
+
+// CompositionOptions choose how TAG species are built from a profile.
+type CompositionOptions struct {
+	// Distribution; zero means DefaultDistribution. Field "distribution".
+	Distribution Distribution
+	// SN2 is the sn-2 estimate for a Positional distribution; zero means
+	// DefaultSN2Estimate. Field "sn2_estimate".
+	SN2 SN2Estimate
+	// SN2Profile is the sn-2 composition for SN2Supplied. Its acids must all
+	// be in the main profile (matched by catalogue ID). Field "sn2_profile".
+	SN2Profile *chem.Profile
+	// EnrichmentFactors are the E_i for SN2Enrichment, one per component of
+	// the main profile, finite and ≥ 0, at least one > 0. Field
+	// "sn2_enrichment_factors".
+	EnrichmentFactors []float64
+	// PoolFloorMoleFraction: species with a smaller mole fraction are pooled
+	// into pseudo-components that share a 2 K melting-point bin (mole
+	// fractions summed, mass kept exactly, melting point and enthalpy
+	// mole-averaged). Zero means DefaultPoolFloorMoleFraction. Field
+	// "pool_floor_mole_fraction".
+	PoolFloorMoleFraction float64
+	// NoPooling keeps every species (slower for profiles with many acids).
+	NoPooling bool
+}
+
+func (o CompositionOptions) withDefaults() CompositionOptions {
+	if o.Distribution == 0 {
+		o.Distribution = DefaultDistribution
+	}
+	if o.SN2 == 0 {
+		o.SN2 = DefaultSN2Estimate
+	}
+	if o.PoolFloorMoleFraction == 0 {
+		o.PoolFloorMoleFraction = DefaultPoolFloorMoleFraction
+	}
+	return o
+}
+
+// Species is one TAG species with the regio-isomers lumped: Outer1 and
+// Outer2 stand for sn-1 and sn-3 in either order.
+type Species struct {
+	Outer1, Middle, Outer2 *chem.FattyAcid
+	// MoleFraction among all TAG species.
+	MoleFraction float64
+	// MolarMass is 92.094 + Σ acids − 3 × 18.015 g/mol (glycerol plus the
+	// three acids less the water of esterification; DOMAIN §9).
+	MolarMass float64
+	// idx are the component indices of Outer1, Middle, Outer2.
+	idx [3]int32
+}
+
+// Label is "16:0/18:1 c9/16:0": the catalogue IDs of sn-1/sn-2/sn-3, where
+// sn-1 and sn-3 are interchangeable.
+func (s Species) Label() string {
+	return s.Outer1.ID + "/" + s.Middle.ID + "/" + s.Outer2.ID
+}
+
+// shortCodes are the one- and two-letter acid codes of the fats literature
+// (P palmitic, O oleic, …); acids without one are written by their ID in
+// brackets.
+var shortCodes = map[string]string{
+	"4:0": "Bu", "6:0": "Co", "8:0": "Cy", "10:0": "C", "12:0": "La", "14:0": "M",
+	"16:0": "P", "16:1 c9": "Po", "18:0": "S", "18:1 c9": "O", "18:1 t9": "E",
+	"18:2 c9,c12": "L", "18:3 c9,c12,c15": "Ln", "20:0": "A", "22:0": "B",
+	"22:1 c13": "Er", "24:0": "Lg",
+}
+
+func shortCode(a *chem.FattyAcid) string {
+	if c, ok := shortCodes[a.ID]; ok {
+		return c
+	}
+	return "[" + a.ID + "]"
+}
+
+// ShortName is the trade shorthand, e.g. "POP", "LaLaM", with sn-1/sn-3 in
+// the order stored.
+func (s Species) ShortName() string {
+	return shortCode(s.Outer1) + shortCode(s.Middle) + shortCode(s.Outer2)
+}
+
+// Composition is the TAG composition of a profile.
+type Composition struct {
+	// Acids are the profile's acids, in component order.
+	Acids []*chem.FattyAcid
+	// Total, SN2 and SN13 are the acids' mole fractions overall, at sn-2 and
+	// at sn-1/3 (each sums to 1).
+	Total, SN2, SN13 []float64
+	// Species lists every species with a positive mole fraction, in a fixed
+	// enumeration order (not sorted).
+	Species []Species
+	// Distribution and SN2Estimate are what was used.
+	Distribution Distribution
+	SN2Estimate  SN2Estimate
+	// Warnings records clipping of a supplied sn-2 composition.
+	Warnings []chem.Warning
+}
+
+// Warning codes of the melting package, in addition to chem's.
+const (
+	// WarnPooled: species below the mole-fraction floor were pooled.
+	WarnPooled = "species_pooled"
+	// WarnOutsideFit: some acids are outside the data the property
+	// correlation was fitted to.
+	WarnOutsideFit = "outside_property_fit"
+	// WarnSN2Clipped: a supplied sn-2 composition exceeded 3·x_i slightly
+	// and was clipped.
+	WarnSN2Clipped = "sn2_clipped"
+	// WarnSlipUndefined: the SFC never reaches the slip threshold in the
+	// searched range, so no slip melting point is reported.
+	WarnSlipUndefined = "slip_point_undefined"
+	// WarnCalibrationLimit: a calibrated parameter sits at its allowed limit.
+	WarnCalibrationLimit = "calibration_at_limit"
+)
+
+// TAGComposition builds the TAG species of a profile. Errors are
+// KindInvalid *chem.Error values with paths under "composition".
+func TAGComposition(p *chem.Profile, opt CompositionOptions) (*Composition, error) {
+	if p == nil || len(p.Components) == 0 {
+		return nil, chem.Errorf(chem.KindInvalid, "a fatty-acid profile is required").WithField("no acids", "acids")
+	}
+	opt = opt.withDefaults()
+	c := &Composition{Distribution: opt.Distribution}
+	n := len(p.Components)
+	c.Acids = make([]*chem.FattyAcid, n)
+	c.Total = make([]float64, n)
+	for i, comp := range p.Components {
+		c.Acids[i] = comp.Acid
+		c.Total[i] = comp.MoleFraction
+	}
+	switch opt.Distribution {
+	case FullRandom:
+		c.SN2 = c.Total
+		c.SN13 = c.Total
+	case Positional:
+		c.SN2Estimate = opt.SN2
+		b, warn, err := sn2Composition(p, c.Total, opt)
+		if err != nil {
+			return nil, err
+		}
+		c.Warnings = append(c.Warnings, warn...)
+		c.SN2 = b
+		c.SN13 = make([]float64, n)
+		var s float64
+		for i := range c.SN13 {
+			c.SN13[i] = math.Max(0, (3*c.Total[i]-b[i])/2)
+			s += c.SN13[i]
+		}
+		for i := range c.SN13 {
+			c.SN13[i] /= s
+		}
+	default:
+		return nil, chem.Errorf(chem.KindInvalid, "unknown distribution").
+			WithField("must be sn13_random_sn2_random or full_random", "composition", "distribution")
+	}
+	c.Species = enumerate(c.Acids, c.SN13, c.SN2)
+	return c, nil
+}
+
+// enumerate lists the lumped species: for outer acids i ≤ k and middle j,
+// P = a_i·b_j·a_k, doubled when i ≠ k because sn-1/sn-3 are equivalent.
+func enumerate(acids []*chem.FattyAcid, a, b []float64) []Species {
+	n := len(acids)
+	mass := make([]float64, n)
+	for i, ac := range acids {
+		mass[i] = ac.MolarMass()
+	}
+	out := make([]Species, 0, n*n*(n+1)/2)
+	for i := 0; i < n; i++ {
+		if a[i] == 0 {
+			continue
+		}
+		for k := i; k < n; k++ {
+			if a[k] == 0 {
+				continue
+			}
+			outer := a[i] * a[k]
+			if i != k {
+				outer *= 2
+			}
+			for j := 0; j < n; j++ {
+				if b[j] == 0 {
+					continue
+				}
+				out = append(out, Species{
+					Outer1: acids[i], Middle: acids[j], Outer2: acids[k],
+					MoleFraction: outer * b[j],
+					MolarMass:    chem.GlycerolBackboneIncrement + mass[i] + mass[j] + mass[k],
+					idx:          [3]int32{int32(i), int32(j), int32(k)},
+				})
+			}
+		}
+	}
+	return out
+}
+
+// sn2Composition returns the sn-2 mole fractions b for a Positional
+// distribution.
+func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]float64, []chem.Warning, error) {
+	n := len(x)
+	weight := make([]float64, n)
+	switch opt.SN2 {
+	case SN2SeedOil:
+		for i, comp := range p.Components {
+			if comp.Acid.DoubleBondCount > 0 && comp.Acid.Carbons == 18 {
+				weight[i] = 1
+			}
+		}
+		return waterFill(x, weight), nil, nil
+	case SN2Palm:
+		for i, comp := range p.Components {
+			a := comp.Acid
+			if a.DoubleBondCount > 0 && a.Carbons <= 18 {
+				weight[i] = 1
+			} else {
+				weight[i] = PalmSN2Selectivity
+			}
+		}
+		return waterFill(x, weight), nil, nil
+	case SN2Enrichment:
+		if len(opt.EnrichmentFactors) != n {
+			return nil, nil, chem.Errorf(chem.KindInvalid, "enrichment factors must match the profile's acids").
+				WithField(fmt.Sprintf("%d factors for %d acids", len(opt.EnrichmentFactors), n), "composition", "sn2_enrichment_factors")
+		}
+		bad := chem.Errorf(chem.KindInvalid, "enrichment factors must be finite and non-negative")
+		anyPositive := false
+		for i, e := range opt.EnrichmentFactors {
+			if math.IsNaN(e) || math.IsInf(e, 0) || e < 0 {
+				bad.WithField("must be a finite number >= 0", "composition", "sn2_enrichment_factors", i)
+			}
+			if e > 0 {
+				anyPositive = true
+			}
+		}
+		if len(bad.Fields) > 0 {
+			return nil, nil, bad
+		}
+		if !anyPositive {
+			return nil, nil, chem.Errorf(chem.KindInvalid, "at least one enrichment factor must be positive").
+				WithField("all factors are zero", "composition", "sn2_enrichment_factors")
+		}
+		copy(weight, opt.EnrichmentFactors)
+		return waterFill(x, weight), nil, nil
+	case SN2Supplied:
+		return suppliedSN2(p, x, opt.SN2Profile)
+	default:
+		return nil, nil, chem.Errorf(chem.KindInvalid, "unknown sn-2 estimate").
+			WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "composition", "sn2_estimate")
+	}
+}
+
+// waterFill distributes the sn-2 position: first among acids with positive
+// weight, b_i ∝ weight_i·x_i, capping each at 3·x_i (an acid cannot occupy
+// more sn-2 places than it has chains) and sharing the excess among the
+// uncapped ones; any remainder goes to the zero-weight acids in proportion
+// to x_i, with the same cap.
+func waterFill(x, weight []float64) []float64 {
+	n := len(x)
+	b := make([]float64, n)
+	fixed := make([]bool, n)
+	remaining := 1.0
+	for tier := 0; tier < 2 && remaining > 1e-15; tier++ {
+		for {
+			var total float64
+			for i := 0; i < n; i++ {
+				if !fixed[i] && tierWeight(tier, weight[i], x[i]) > 0 {
+					total += tierWeight(tier, weight[i], x[i])
+				}
+			}
+			if total == 0 {
+				break
+			}
+			capped := false
+			for i := 0; i < n; i++ {
+				w := tierWeight(tier, weight[i], x[i])
+				if fixed[i] || w == 0 {
+					continue
+				}
+				if remaining*w/total > 3*x[i] {
+					b[i] = 3 * x[i]
+					fixed[i] = true
+					remaining -= b[i]
+					capped = true
+				}
+			}
+			if capped {
+				continue
+			}
+			for i := 0; i < n; i++ {
+				w := tierWeight(tier, weight[i], x[i])
+				if !fixed[i] && w > 0 {
+					b[i] = remaining * w / total
+					fixed[i] = true
+				}
+			}
+			remaining = 0
+			break
+		}
+	}
+	return b
+}
+
+// tierWeight is the filling weight of an acid in tier 0 (positive-weight
+// acids) or tier 1 (the rest).
+func tierWeight(tier int, w, x float64) float64 {
+	if tier == 0 {
+		return w * x
+	}
+	if w > 0 {
+		return 0 // already served in tier 0
+	}
+	return x
+}
+
+func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []chem.Warning, error) {
+	if sn2 == nil || len(sn2.Components) == 0 {
+		return nil, nil, chem.Errorf(chem.KindInvalid, "the supplied sn-2 estimate needs an sn-2 composition").
+			WithField("required when sn2_estimate is supplied", "composition", "sn2_profile")
+	}
+	// Acids are matched by canonical ID, so profiles read through different
+	// catalogue instances still match.
+	index := make(map[string]int, len(p.Components))
+	for i, c := range p.Components {
+		index[c.Acid.ID] = i
+	}
+	b := make([]float64, len(x))
+	bad := chem.Errorf(chem.KindInvalid, "the sn-2 composition does not fit the profile")
+	for k, c := range sn2.Components {
+		i, ok := index[c.Acid.ID]
+		if !ok {
+			if c.MoleFraction > 0 {
+				bad.WithField(c.Acid.ID+" is at sn-2 but not in the profile", "composition", "sn2_profile", "acids", k)
+			}
+			continue
+		}
+		b[i] += c.MoleFraction
+	}
+	var warn []chem.Warning
+	var clipped []string
+	for i := range b {
+		over := b[i] - 3*x[i]
+		switch {
+		case over > maxSN2Overshoot:
+			bad.WithField(fmt.Sprintf("%s is %.4g mole fraction at sn-2 but at most 3 × %.4g = %.4g is possible",
+				p.Components[i].Acid.ID, b[i], x[i], 3*x[i]), "composition", "sn2_profile")
+		case over > 0:
+			b[i] = 3 * x[i]
+			clipped = append(clipped, p.Components[i].Acid.ID)
+		}
+	}
+	if len(bad.Fields) > 0 {
+		if len(bad.Fields) == 1 {
+			bad.Message = bad.Fields[0].Reason
+		}
+		return nil, nil, bad
+	}
+	if len(clipped) > 0 {
+		var s float64
+		for _, v := range b {
+			s += v
+		}
+		for i := range b {
+			b[i] /= s
+		}
+		warn = append(warn, chem.Warning{Code: WarnSN2Clipped, Message: fmt.Sprintf(
+			"the sn-2 share of %s exceeded three times its overall share by less than %.2g mole fraction; "+
+				"it was clipped to that limit and the sn-2 composition rescaled", strings.Join(clipped, ", "), maxSN2Overshoot),
+			Path: []any{"composition", "sn2_profile"}})
+	}
+	return b, warn, nil
+}
+
+// CombinePools returns the overall profile of a fat whose sn-1,3 and sn-2
+// pools are known separately (for example from a hardening forecast that
+// hardened them separately): x = (2·a + b)/3 in mole fractions, over the
+// union of their acids, in the basis of sn13. Use it with SN2Supplied and
+// the sn-2 pool as SN2Profile.
+func CombinePools(sn13, sn2 *chem.Profile) (*chem.Profile, error) {
+	if sn13 == nil || sn2 == nil || len(sn13.Components) == 0 || len(sn2.Components) == 0 {
+		return nil, chem.Errorf(chem.KindInvalid, "both pools are required").WithField("a pool is empty", "composition")
+	}
+	var acids []*chem.FattyAcid
+	index := map[string]int{} // by canonical acid ID
+	var x []float64
+	add := func(p *chem.Profile, w float64) {
+		for _, c := range p.Components {
+			i, ok := index[c.Acid.ID]
+			if !ok {
+				i = len(acids)
+				index[c.Acid.ID] = i
+				acids = append(acids, c.Acid)
+				x = append(x, 0)
+			}
+			x[i] += w * c.MoleFraction
+		}
+	}
+	add(sn13, 2.0/3)
+	add(sn2, 1.0/3)
+	return chem.FromMoleFractions(acids, x, sn13.Basis), nil
+}

@@ -1,0 +1,750 @@
+package melting
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+	"strings"
+
+	"lipidsvc/chem"
+)
+
+// DefaultSlipThresholdPercent is the solid fat content (mass %) at which the
+// slip melting point is read. The trade places the slip melting point where
+// the SFC falls to about 3–5 % [practice, DOMAIN §10]. With the default
+// model and polymorph the slip points of the validation fats come out low,
+// and 3 % — the low end of that range — gave the smallest error
+// (testdata/melting/VALIDATION.md lists 3, 4 and 5 % for every model and
+// polymorph). Calibrate a fat to fit its own threshold.
+const DefaultSlipThresholdPercent = 3.0
+
+// DefaultMainSpecies is how many TAG species a result lists by default.
+const DefaultMainSpecies = 10
+
+// Temperature limits of the package, °C: requested temperatures must lie in
+// [MinTemperatureC, MaxTemperatureC]; the slip melting point is searched
+// down to MinTemperatureC.
+const (
+	MinTemperatureC = -60.0
+	MaxTemperatureC = 120.0
+	// MaxTemperatures is the largest number of temperatures one request may
+	// ask for.
+	MaxTemperatures = 2000
+)
+
+// ReportingTemperaturesC are the temperatures at which SFC is customarily
+// reported (AOCS Cd 16b-93 and trade specifications quote 10, 21.1, 26.7,
+// 33.3 and 37.8 °C — 50, 70, 80, 92 and 100 °F — or 10, 20, 25, 30, 35,
+// 40 °C); 37 °C is mouth temperature.
+var reportingTemperaturesC = []float64{10, 20, 21.1, 25, 26.7, 30, 33.3, 35, 37, 40}
+
+// ReportingTemperaturesC returns a copy of the customary reporting
+// temperatures, °C: 10, 20, 21.1, 25, 26.7, 30, 33.3, 35, 37, 40.
+func ReportingTemperaturesC() []float64 { return slices.Clone(reportingTemperaturesC) }
+
+// DefaultTemperaturesC returns the default curve: 0–60 °C in 1 °C steps plus
+// the customary reporting points, ascending.
+func DefaultTemperaturesC() []float64 {
+	t := make([]float64, 0, 64)
+	for i := 0; i <= 60; i++ {
+		t = append(t, float64(i))
+	}
+	t = append(t, reportingTemperaturesC...)
+	slices.Sort(t)
+	return slices.Compact(t)
+}
+
+// Calibration is a small correction fitted to one fat's measurements by
+// [Calibrate] and accepted by [Melt]: every TAG melting point is raised by
+// TemperatureShiftK (enthalpies unchanged), and the slip melting point is
+// read at SlipThresholdPercent. The zero value is no correction.
+type Calibration struct {
+	// TemperatureShiftK, K, within ±MaxCalibrationShiftK. Field
+	// "temperature_shift_k".
+	TemperatureShiftK float64
+	// SlipThresholdPercent, mass %; zero keeps Options.SlipThresholdPercent.
+	// When set it wins over Options.SlipThresholdPercent. Field
+	// "slip_threshold_percent".
+	SlipThresholdPercent float64
+}
+
+// Options are the parameters of a melting calculation. The zero value of
+// every field means its documented default, so Options{} is valid. Field
+// names for error paths are given on each field (under "options" only where
+// the caller nests them).
+type Options struct {
+	// Polymorph of all solids; zero means DefaultPolymorph (β′). Field
+	// "polymorph".
+	Polymorph Polymorph
+	// SolidModel; zero means DefaultSolidModel. Field "solid_model".
+	SolidModel SolidModel
+	// Composition chooses the TAG distribution and pooling. Field
+	// "composition".
+	Composition CompositionOptions
+	// TemperaturesC of the SFC curve; nil means DefaultTemperaturesC. At most
+	// MaxTemperatures values in [MinTemperatureC, MaxTemperatureC]. The curve
+	// is returned ascending without duplicates. Field "temperatures_c".
+	TemperaturesC []float64
+	// SlipThresholdPercent, mass % in (0, 50]; zero means
+	// DefaultSlipThresholdPercent. Field "slip_threshold_percent".
+	SlipThresholdPercent float64
+	// Calibration from Calibrate; zero means none. Field "calibration".
+	Calibration Calibration
+	// MainSpecies is how many species the result lists; zero means
+	// DefaultMainSpecies, at most 100. Field "main_species_count".
+	MainSpecies int
+	// MaxIterations caps iterative solvers; zero means
+	// DefaultMaxIterations. Field "max_iterations".
+	MaxIterations int
+}
+
+// MaxCalibrationShiftK bounds Calibration.TemperatureShiftK.
+const MaxCalibrationShiftK = 15.0
+
+// DefaultOptions returns the defaults written out.
+func DefaultOptions() Options {
+	return Options{}.withDefaults()
+}
+
+func (o Options) withDefaults() Options {
+	if o.Polymorph == 0 {
+		o.Polymorph = DefaultPolymorph
+	}
+	if o.SolidModel == 0 {
+		o.SolidModel = DefaultSolidModel
+	}
+	o.Composition = o.Composition.withDefaults()
+	if o.SlipThresholdPercent == 0 {
+		o.SlipThresholdPercent = DefaultSlipThresholdPercent
+	}
+	if o.MainSpecies == 0 {
+		o.MainSpecies = DefaultMainSpecies
+	}
+	if o.MaxIterations == 0 {
+		o.MaxIterations = DefaultMaxIterations
+	}
+	return o
+}
+
+// validate checks options after defaults are filled.
+func (o Options) validate() error {
+	bad := chem.Errorf(chem.KindInvalid, "the melting options are invalid")
+	if !o.Polymorph.valid() {
+		bad.WithField("must be alpha, beta_prime or beta", "polymorph")
+	}
+	if o.SolidModel != MultiplePureSolids && o.SolidModel != IdealSolidSolution {
+		bad.WithField("must be multiple_pure_solids or ideal_solid_solution", "solid_model")
+	}
+	if o.Composition.Distribution != Positional && o.Composition.Distribution != FullRandom {
+		bad.WithField("must be sn13_random_sn2_random or full_random", "composition", "distribution")
+	}
+	if o.Composition.SN2 < SN2SeedOil || o.Composition.SN2 > SN2Enrichment {
+		bad.WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "composition", "sn2_estimate")
+	}
+	if f := o.Composition.PoolFloorMoleFraction; !(f > 0 && f <= 0.01) {
+		bad.WithField("must be > 0 and <= 0.01", "composition", "pool_floor_mole_fraction")
+	}
+	if len(o.TemperaturesC) > MaxTemperatures {
+		bad.WithField(fmt.Sprintf("at most %d temperatures", MaxTemperatures), "temperatures_c")
+	}
+	for i, t := range o.TemperaturesC {
+		if !(t >= MinTemperatureC && t <= MaxTemperatureC) {
+			bad.WithField(fmt.Sprintf("must be a number from %g to %g °C", MinTemperatureC, MaxTemperatureC), "temperatures_c", i)
+		}
+	}
+	if t := o.SlipThresholdPercent; !(t > 0 && t <= 50) {
+		bad.WithField("must be > 0 and <= 50", "slip_threshold_percent")
+	}
+	if s := o.Calibration.TemperatureShiftK; !(math.Abs(s) <= MaxCalibrationShiftK) {
+		bad.WithField(fmt.Sprintf("must be within ±%g K", MaxCalibrationShiftK), "calibration", "temperature_shift_k")
+	}
+	if t := o.Calibration.SlipThresholdPercent; !(t >= 0 && t <= 50) {
+		bad.WithField("must be >= 0 and <= 50", "calibration", "slip_threshold_percent")
+	}
+	if o.MainSpecies < 0 || o.MainSpecies > 100 {
+		bad.WithField("must be from 0 to 100", "main_species_count")
+	}
+	if o.MaxIterations < 1 || o.MaxIterations > 100000 {
+		bad.WithField("must be from 1 to 100000", "max_iterations")
+	}
+	if len(bad.Fields) > 0 {
+		if len(bad.Fields) == 1 {
+			bad.Message = bad.Fields[0].Reason
+		}
+		return bad
+	}
+	return nil
+}
+
+// slipThreshold is the threshold in force: the calibration's if set.
+func (o Options) slipThreshold() float64 {
+	if o.Calibration.SlipThresholdPercent > 0 {
+		return o.Calibration.SlipThresholdPercent
+	}
+	return o.SlipThresholdPercent
+}
+
+// Fat is a profile prepared for melting queries: its TAG species with their
+// properties in the chosen polymorph, pooled and ready for the equilibrium.
+// Build it with [Prepare]; it is immutable and safe for concurrent use.
+type Fat struct {
+	opt         Options
+	composition *Composition
+	mixture     *Mixture
+	// per-species melting points (K) and override flags, aligned with
+	// composition.Species.
+	tm       []float64
+	measured []bool
+	// reporting
+	totalMass         float64
+	pooledSpecies     int
+	pooledMassPercent float64
+	overrides         int
+	warnings          []chem.Warning
+}
+
+// Prepare builds the TAG composition of p, assigns each species its
+// melting properties in opt.Polymorph (measured where known, otherwise the
+// fitted correlation), pools the species below the floor and returns the
+// fat ready for equilibrium queries.
+func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
+	opt = opt.withDefaults()
+	if err := opt.validate(); err != nil {
+		return nil, err
+	}
+	comp, err := TAGComposition(p, opt.Composition)
+	if err != nil {
+		return nil, err
+	}
+	f := &Fat{opt: opt, composition: comp}
+	f.warnings = append(f.warnings, comp.Warnings...)
+
+	// Per-acid parts of the correlation: ΔH and ΔS are sums over chains
+	// plus the intercepts and the mismatch term.
+	coef := fittedCoefficients
+	k := coef.For(opt.Polymorph)
+	n := len(comp.Acids)
+	chains := make([]chain, n)
+	hc := make([]float64, n)
+	sc := make([]float64, n)
+	var outside []string
+	for i, a := range comp.Acids {
+		c := chainOf(a)
+		chains[i] = c
+		if !c.inFit {
+			outside = append(outside, a.ID)
+		}
+		s := structureOf(c, chain{kind: kindSaturated}, chain{kind: kindSaturated})
+		g := k.OddChainKJ*s.groups[1] + k.CisMonoeneKJ*s.groups[2] + k.TransMonoeneKJ*s.groups[3] +
+			k.DieneKJ*s.groups[4] + k.TrieneKJ*s.groups[5]
+		hc[i] = k.EnthalpyPerCarbonKJ*float64(c.carbons) + g
+		sc[i] = k.EntropyPerCarbonJ*float64(c.carbons) + 1000*g/coef.CompensationTemperatureK
+	}
+	// Mismatch g(d) = 1 − exp(−(d/w)²) for every chain-length difference.
+	maxC := 0
+	for _, c := range chains {
+		maxC = max(maxC, c.carbons)
+	}
+	gm := make([]float64, maxC+1)
+	for d := range gm {
+		q := float64(d) / coef.MismatchWidthCarbons
+		gm[d] = 1 - math.Exp(-q*q)
+	}
+	overrides := resolveOverrides(comp.Acids, opt.Polymorph)
+
+	species := comp.Species
+	f.tm = make([]float64, len(species))
+	f.measured = make([]bool, len(species))
+	dh := make([]float64, len(species))
+	var outsideMass float64
+	shift := opt.Calibration.TemperatureShiftK
+	for si := range species {
+		sp := &species[si]
+		i, j, l := sp.idx[0], sp.idx[1], sp.idx[2]
+		short, long := chains[i].carbons, chains[l].carbons
+		if short > long {
+			short, long = long, short
+		}
+		x := chains[j].carbons - short
+		if x < 0 {
+			x = -x
+		}
+		fxy := gm[x] + gm[long-short]
+		h := k.EnthalpyInterceptKJ + hc[i] + hc[j] + hc[l] + k.MismatchKJ*fxy
+		s := k.EntropyInterceptJ + sc[i] + sc[j] + sc[l] + 1000*k.MismatchKJ*fxy/coef.CompensationTemperatureK
+		var tm float64
+		if h < floorEnthalpyKJ || s <= 0 {
+			tm, h = floorMeltingPointK, floorEnthalpyKJ
+		} else if tm = 1000 * h / s; tm < floorMeltingPointK {
+			tm = floorMeltingPointK
+		}
+		if len(overrides) > 0 {
+			if m, ok := overrides[sp.idx]; ok {
+				if !math.IsNaN(m.meltingPointK) {
+					tm = m.meltingPointK
+				}
+				if !math.IsNaN(m.enthalpyKJ) {
+					h = m.enthalpyKJ
+				}
+				f.measured[si] = true
+				f.overrides++
+			}
+		}
+		f.tm[si] = tm
+		dh[si] = h
+		mass := sp.MoleFraction * sp.MolarMass
+		f.totalMass += mass
+		if !chains[i].inFit || !chains[j].inFit || !chains[l].inFit {
+			outsideMass += mass
+		}
+	}
+
+	f.mixture = f.buildMixture(dh, shift)
+	if len(outside) > 0 {
+		f.warnings = append(f.warnings, chem.Warning{Code: WarnOutsideFit, Message: fmt.Sprintf(
+			"%s %s outside the pure-TAG data the property correlation was fitted to; the species containing "+
+				"them (%.3g %% of the mass) use extrapolated melting properties", strings.Join(outside, ", "),
+			plural(len(outside), "is", "are"), 100*outsideMass/f.totalMass), Path: []any{"acids"}})
+	}
+	if f.pooledSpecies > 0 {
+		f.warnings = append(f.warnings, chem.Warning{Code: WarnPooled, Message: fmt.Sprintf(
+			"%d species below a mole fraction of %.3g (%.3g %% of the mass) were pooled into %d components "+
+				"by melting point (%g K bins)", f.pooledSpecies, opt.Composition.PoolFloorMoleFraction,
+			f.pooledMassPercent, f.mixture.Len()-(len(species)-f.pooledSpecies), poolBinK),
+			Path: []any{"composition", "pool_floor_mole_fraction"}})
+	}
+	return f, nil
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+// resolveOverrides maps the measured values for polymorph p onto species
+// index triples of the given acids.
+func resolveOverrides(acids []*chem.FattyAcid, p Polymorph) map[[3]int32]measuredOverride {
+	var out map[[3]int32]measuredOverride
+	idx := func(id string) (int32, bool) {
+		for i, a := range acids {
+			if a.ID == id {
+				return int32(i), true
+			}
+		}
+		return 0, false
+	}
+	for _, m := range measuredOverrides {
+		if m.polymorph != p {
+			continue
+		}
+		o1, ok1 := idx(m.outer1)
+		mid, ok2 := idx(m.middle)
+		o2, ok3 := idx(m.outer2)
+		if !ok1 || !ok2 || !ok3 {
+			continue
+		}
+		if o1 > o2 {
+			o1, o2 = o2, o1
+		}
+		if out == nil {
+			out = map[[3]int32]measuredOverride{}
+		}
+		out[[3]int32{o1, mid, o2}] = m
+	}
+	return out
+}
+
+// buildMixture keeps the species at or above the pooling floor and pools
+// the rest into 2 K melting-point bins.
+func (f *Fat) buildMixture(dh []float64, shift float64) *Mixture {
+	species := f.composition.Species
+	floor := f.opt.Composition.PoolFloorMoleFraction
+	if f.opt.Composition.NoPooling {
+		floor = 0
+	}
+	n := 0
+	for si := range species {
+		if species[si].MoleFraction >= floor {
+			n++
+		}
+	}
+	n += 256 // room for the pooled bins
+	m := &Mixture{z: make([]float64, 0, n), mass: make([]float64, 0, n), a: make([]float64, 0, n),
+		c: make([]float64, 0, n), tm: make([]float64, 0, n)}
+	type bin struct{ z, zm, ztm, zdh float64 }
+	var bins []bin
+	var pooledMass float64
+	for si := range species {
+		sp := &species[si]
+		if sp.MoleFraction >= floor {
+			m.add(sp.MoleFraction, sp.MolarMass, f.tm[si]+shift, dh[si])
+			continue
+		}
+		b := int(f.tm[si] / poolBinK)
+		if b >= len(bins) {
+			bins = append(bins, make([]bin, b+1-len(bins))...)
+		}
+		bb := &bins[b]
+		bb.z += sp.MoleFraction
+		bb.zm += sp.MoleFraction * sp.MolarMass
+		bb.ztm += sp.MoleFraction * f.tm[si]
+		bb.zdh += sp.MoleFraction * dh[si]
+		pooledMass += sp.MoleFraction * sp.MolarMass
+		f.pooledSpecies++
+	}
+	for _, b := range bins {
+		if b.z > 0 {
+			m.add(b.z, b.zm/b.z, b.ztm/b.z+shift, b.zdh/b.z)
+		}
+	}
+	f.pooledMassPercent = 100 * pooledMass / f.totalMass
+	return m
+}
+
+// Composition returns the TAG composition the fat was built from.
+func (f *Fat) Composition() *Composition { return f.composition }
+
+// Mixture returns the components handed to the equilibrium solvers.
+func (f *Fat) Mixture() *Mixture { return f.mixture }
+
+// Options returns the options in force, defaults filled.
+func (f *Fat) Options() Options { return f.opt }
+
+// Warnings returns what preparing the fat assumed (pooling, acids outside
+// the fit, clipped sn-2).
+func (f *Fat) Warnings() []chem.Warning { return slices.Clone(f.warnings) }
+
+// SolidFatContent is the SFC (mass %) at temperatureC in the fat's
+// polymorph and solid model, with its calibration shift applied (the shift
+// is already in the components).
+func (f *Fat) SolidFatContent(temperatureC float64) (float64, error) {
+	return f.mixture.sfc(f.opt.SolidModel, temperatureC+zeroCelsiusK, 0, f.opt.MaxIterations, f.mixture.newWorkspace())
+}
+
+// ClearPointC is the temperature (°C) at which the SFC reaches zero; see
+// [Mixture.ClearPointC].
+func (f *Fat) ClearPointC() (float64, error) {
+	return f.mixture.ClearPointC(f.opt.SolidModel, f.opt.MaxIterations)
+}
+
+// SlipMeltingPointC returns the temperature (°C) at which the SFC falls to
+// the slip threshold, found by root finding on the monotone SFC(T) between
+// the clear point and a temperature where the SFC is above the threshold.
+// When the SFC stays below the threshold down to MinTemperatureC, it returns
+// MinTemperatureC and defined = false, so the function stays monotone for a
+// root finder working along a hardening path.
+func (f *Fat) SlipMeltingPointC() (tC float64, defined bool, err error) {
+	w := f.mixture.newWorkspace()
+	t, ok, err := f.slipPoint(w, nil)
+	return t - zeroCelsiusK, ok, err
+}
+
+// curvePoint is one evaluated SFC value, K.
+type curvePoint struct{ tK, sfc float64 }
+
+// slipPoint finds the slip temperature (K). known are SFC values already
+// computed (ascending in T), used to bracket the root without new
+// evaluations.
+func (f *Fat) slipPoint(w *workspace, known []curvePoint) (float64, bool, error) {
+	thr := f.opt.slipThreshold()
+	model, maxIter := f.opt.SolidModel, f.opt.MaxIterations
+	eval := func(tK float64) (float64, error) { return f.mixture.sfc(model, tK, 0, maxIter, w) }
+	clear, err := f.mixture.clearPointK(model, 0, maxIter)
+	if err != nil {
+		return 0, false, err
+	}
+	lowK := MinTemperatureC + zeroCelsiusK
+	// Bracket [lo, hi] with SFC(lo) ≥ thr > SFC(hi).
+	hi, lo := clear, math.NaN()
+	var flo, fhi float64 = math.NaN(), -thr
+	for _, p := range known {
+		if p.tK >= clear {
+			break
+		}
+		if p.sfc >= thr {
+			lo, flo = p.tK, p.sfc-thr
+		} else if !math.IsNaN(lo) && p.tK < hi {
+			hi, fhi = p.tK, p.sfc-thr
+			break
+		}
+	}
+	if math.IsNaN(lo) {
+		if len(known) > 0 && known[0].sfc < thr {
+			hi, fhi = known[0].tK, known[0].sfc-thr
+		}
+		for step := 2.0; ; step *= 2 {
+			t := math.Max(hi-step, lowK)
+			v, err := eval(t)
+			if err != nil {
+				return 0, false, err
+			}
+			if v >= thr {
+				lo, flo = t, v-thr
+				break
+			}
+			hi, fhi = t, v-thr
+			if t <= lowK {
+				return lowK, false, nil
+			}
+		}
+	}
+	// Illinois (modified regula falsi) on the monotone, continuous SFC(T).
+	side := 0
+	for it := 0; it < 200; it++ {
+		t := hi - fhi*(hi-lo)/(fhi-flo)
+		if !(t > lo && t < hi) {
+			t = 0.5 * (lo + hi)
+		}
+		v, err := eval(t)
+		if err != nil {
+			return 0, false, err
+		}
+		fv := v - thr
+		if hi-lo < 1e-7 || fv == 0 {
+			return t, true, nil
+		}
+		if fv > 0 {
+			lo, flo = t, fv
+			if side == -1 {
+				fhi /= 2
+			}
+			side = -1
+		} else {
+			hi, fhi = t, fv
+			if side == 1 {
+				flo /= 2
+			}
+			side = 1
+		}
+	}
+	return 0.5 * (lo + hi), true, nil
+}
+
+// SFCPoint is one point of a solid fat content curve.
+type SFCPoint struct {
+	TemperatureC float64
+	// SFCPercent is the solid fat content, mass %.
+	SFCPercent float64
+}
+
+// SpeciesShare is one TAG species of a result.
+type SpeciesShare struct {
+	// Label is "sn-1/sn-2/sn-3" by catalogue IDs (sn-1 and sn-3
+	// interchangeable); ShortName the trade letters, e.g. "POP".
+	Label, ShortName string
+	MolePercent      float64
+	MassPercent      float64
+	// MeltingPointC in the result's polymorph, calibration shift included.
+	MeltingPointC float64
+	// MeltingPointMeasured reports a measured override.
+	MeltingPointMeasured bool
+}
+
+// Parameters echoes what a result was computed with, defaults filled.
+type Parameters struct {
+	Polymorph             Polymorph
+	SolidModel            SolidModel
+	Distribution          Distribution
+	SN2Estimate           SN2Estimate // zero for FullRandom
+	PoolFloorMoleFraction float64     // zero when pooling is off
+	SlipThresholdPercent  float64     // the threshold in force
+	Calibration           Calibration
+}
+
+// Result is the melting behaviour of one fat.
+type Result struct {
+	// Curve is the SFC at the requested temperatures, ascending.
+	Curve []SFCPoint
+	// ReportingPoints is the SFC at ReportingTemperaturesC.
+	ReportingPoints []SFCPoint
+	// SlipMeltingPointC is where the SFC falls to the slip threshold; when
+	// SlipMeltingPointDefined is false the SFC stays below the threshold
+	// down to MinTemperatureC and the value is MinTemperatureC.
+	SlipMeltingPointC       float64
+	SlipMeltingPointDefined bool
+	// ClearPointC is where the SFC reaches zero.
+	ClearPointC float64
+	// SFCAt37CPercent is the SFC at 37 °C (mouth temperature).
+	SFCAt37CPercent float64
+	// MainSpecies are the largest species by mass, largest first.
+	MainSpecies []SpeciesShare
+	// SpeciesCount is the number of species generated; ComponentCount the
+	// number the equilibrium solved after pooling; PooledSpecies and
+	// PooledMassPercent describe the pooling.
+	SpeciesCount      int
+	ComponentCount    int
+	PooledSpecies     int
+	PooledMassPercent float64
+	// MeasuredOverrides is how many species used measured pure-TAG values.
+	MeasuredOverrides int
+	Parameters        Parameters
+	// Assumptions states the models used, in words.
+	Assumptions []string
+	Warnings    []chem.Warning
+}
+
+// Melt computes the melting behaviour of a fat from its profile. Errors are
+// *chem.Error values: KindInvalid for bad options, KindNoConvergence if an
+// iterative solver hits its cap.
+func Melt(p *chem.Profile, opt Options) (*Result, error) {
+	f, err := Prepare(p, opt)
+	if err != nil {
+		return nil, err
+	}
+	return f.Melt()
+}
+
+// Melt computes the full result for a prepared fat.
+func (f *Fat) Melt() (*Result, error) {
+	opt := f.opt
+	temps := opt.TemperaturesC
+	if temps == nil {
+		temps = DefaultTemperaturesC()
+	} else {
+		temps = slices.Clone(temps)
+		slices.Sort(temps)
+		temps = slices.Compact(temps)
+	}
+	all := slices.Concat(temps, reportingTemperaturesC)
+	slices.Sort(all)
+	all = slices.Compact(all)
+
+	w := f.mixture.newWorkspace()
+	known := make([]curvePoint, len(all))
+	sfcAt := make(map[float64]float64, len(all))
+	for i, t := range all {
+		v, err := f.mixture.sfc(opt.SolidModel, t+zeroCelsiusK, 0, opt.MaxIterations, w)
+		if err != nil {
+			return nil, err
+		}
+		known[i] = curvePoint{t + zeroCelsiusK, v}
+		sfcAt[t] = v
+	}
+	r := &Result{
+		SpeciesCount:      len(f.composition.Species),
+		ComponentCount:    f.mixture.Len(),
+		PooledSpecies:     f.pooledSpecies,
+		PooledMassPercent: f.pooledMassPercent,
+		MeasuredOverrides: f.overrides,
+		SFCAt37CPercent:   sfcAt[37],
+	}
+	for _, t := range temps {
+		r.Curve = append(r.Curve, SFCPoint{t, sfcAt[t]})
+	}
+	for _, t := range reportingTemperaturesC {
+		r.ReportingPoints = append(r.ReportingPoints, SFCPoint{t, sfcAt[t]})
+	}
+	clear, err := f.mixture.clearPointK(opt.SolidModel, 0, opt.MaxIterations)
+	if err != nil {
+		return nil, err
+	}
+	r.ClearPointC = clear - zeroCelsiusK
+	slip, ok, err := f.slipPoint(w, known)
+	if err != nil {
+		return nil, err
+	}
+	r.SlipMeltingPointC, r.SlipMeltingPointDefined = slip-zeroCelsiusK, ok
+	r.MainSpecies = f.mainSpecies(opt.MainSpecies)
+	r.Parameters = f.parameters()
+	r.Assumptions = f.assumptions()
+	r.Warnings = slices.Clone(f.warnings)
+	if !ok {
+		r.Warnings = append(r.Warnings, chem.Warning{Code: WarnSlipUndefined, Message: fmt.Sprintf(
+			"the solid fat content stays below the slip threshold of %.3g %% down to %g °C; no slip melting point is reported",
+			opt.slipThreshold(), MinTemperatureC), Path: []any{"slip_threshold_percent"}})
+	}
+	return r, nil
+}
+
+func (f *Fat) parameters() Parameters {
+	o := f.opt
+	p := Parameters{
+		Polymorph: o.Polymorph, SolidModel: o.SolidModel, Distribution: o.Composition.Distribution,
+		PoolFloorMoleFraction: o.Composition.PoolFloorMoleFraction,
+		SlipThresholdPercent:  o.slipThreshold(), Calibration: o.Calibration,
+	}
+	if o.Composition.Distribution == Positional {
+		p.SN2Estimate = o.Composition.SN2
+	}
+	if o.Composition.NoPooling {
+		p.PoolFloorMoleFraction = 0
+	}
+	return p
+}
+
+func (f *Fat) assumptions() []string {
+	o := f.opt
+	out := []string{
+		"TAG species: " + distributionWords(o.Composition) + "; sn-1 and sn-3 taken as equivalent (regio-isomers lumped)",
+		fmt.Sprintf("pure-TAG properties in the %s form from the fitted correlation (Wesdorp's structure, our coefficients), "+
+			"measured values used for %d species", o.Polymorph, f.overrides),
+		"solid-liquid equilibrium with an ideal liquid and " + modelWords(o.SolidModel),
+		fmt.Sprintf("slip melting point read where the SFC falls to %.3g %%; clear point where it reaches zero", o.slipThreshold()),
+	}
+	if o.Calibration != (Calibration{}) {
+		out = append(out, fmt.Sprintf("calibrated: every melting point shifted by %+.3g K", o.Calibration.TemperatureShiftK))
+	}
+	return out
+}
+
+func distributionWords(c CompositionOptions) string {
+	if c.Distribution == FullRandom {
+		return "full random distribution"
+	}
+	return "1,3-random-2-random distribution, sn-2 by the " + strings.ReplaceAll(c.SN2.String(), "_", " ")
+}
+
+func modelWords(m SolidModel) string {
+	if m == IdealSolidSolution {
+		return "one ideal solid solution"
+	}
+	return "multiple pure solid phases (eutectic)"
+}
+
+// mainSpecies returns the n largest species by mass.
+func (f *Fat) mainSpecies(n int) []SpeciesShare {
+	species := f.composition.Species
+	idx := make([]int, 0, n+1)
+	for si := range species {
+		m := species[si].MoleFraction * species[si].MolarMass
+		if len(idx) == n && m <= species[idx[n-1]].MoleFraction*species[idx[n-1]].MolarMass {
+			continue
+		}
+		pos := sort.Search(len(idx), func(k int) bool {
+			return species[idx[k]].MoleFraction*species[idx[k]].MolarMass < m
+		})
+		idx = slices.Insert(idx, pos, si)
+		if len(idx) > n {
+			idx = idx[:n]
+		}
+	}
+	out := make([]SpeciesShare, len(idx))
+	for k, si := range idx {
+		sp := species[si]
+		out[k] = SpeciesShare{
+			Label: sp.Label(), ShortName: sp.ShortName(),
+			MolePercent:          100 * sp.MoleFraction,
+			MassPercent:          100 * sp.MoleFraction * sp.MolarMass / f.totalMass,
+			MeltingPointC:        f.tm[si] + f.opt.Calibration.TemperatureShiftK - zeroCelsiusK,
+			MeltingPointMeasured: f.measured[si],
+		}
+	}
+	return out
+}
+
+// SlipMeltingPointC is the cheap entry point for root finders (for example
+// hardening to a melting target): it prepares the fat and finds the slip
+// melting point without computing a curve. See [Fat.SlipMeltingPointC] for
+// the undefined case. For strict continuity along a composition path set
+// opt.Composition.NoPooling (pooling can move the result by a few hundredths
+// of a kelvin when a species crosses the floor).
+func SlipMeltingPointC(p *chem.Profile, opt Options) (tC float64, defined bool, err error) {
+	f, err := Prepare(p, opt)
+	if err != nil {
+		return 0, false, err
+	}
+	return f.SlipMeltingPointC()
+}

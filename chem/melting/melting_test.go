@@ -1,0 +1,446 @@
+package melting
+
+import (
+	"context"
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/chem"
+)
+
+// acidPct is one line of a test profile, weight % on the FAME basis.
+type acidPct struct {
+	label string
+	pct   float64
+}
+
+func profileOf(t testing.TB, lines ...acidPct) *chem.Profile {
+	t.Helper()
+	entries := make([]chem.Entry, len(lines))
+	for i, l := range lines {
+		entries[i] = chem.Entry{Label: l.label, Percent: l.pct}
+	}
+	p, err := chem.NewProfile(chem.NewCatalogue(), chem.BasisFAMEWeight, entries, 0.5)
+	require.NoError(t, err)
+	return p
+}
+
+// palmLike is DOMAIN.md §3's palm-like test vector (IV 52).
+func palmLike(t testing.TB) *chem.Profile {
+	return profileOf(t, acidPct{"12:0", 0.2}, acidPct{"14:0", 1.0}, acidPct{"16:0", 44.0}, acidPct{"16:1", 0.2},
+		acidPct{"18:0", 4.5}, acidPct{"18:1", 39.2}, acidPct{"18:2", 10.1}, acidPct{"18:3", 0.3}, acidPct{"20:0", 0.4}, acidPct{"20:1", 0.1})
+}
+
+// soyLike is DOMAIN.md §3's soy-like test vector.
+func soyLike(t testing.TB) *chem.Profile {
+	return profileOf(t, acidPct{"16:0", 10.5}, acidPct{"16:1", 0.1}, acidPct{"18:0", 4.0}, acidPct{"18:1", 23.0},
+		acidPct{"18:2", 53.7}, acidPct{"18:3", 7.6}, acidPct{"20:0", 0.4}, acidPct{"20:1", 0.3}, acidPct{"22:0", 0.4})
+}
+
+// TestToyCheck reproduces DOMAIN.md §10's three-TAG check [calc] with both
+// solid models to 1e-4.
+func TestToyCheck(t *testing.T) {
+	m, err := NewMixture([]Component{
+		{MoleFraction: 0.05, MeltingPointK: 339.15, EnthalpyKJPerMol: 171, MolarMass: 850},
+		{MoleFraction: 0.25, MeltingPointK: 310.15, EnthalpyKJPerMol: 140, MolarMass: 850},
+		{MoleFraction: 0.70, MeltingPointK: 278.15, EnthalpyKJPerMol: 100, MolarMass: 850},
+	})
+	require.NoError(t, err)
+	for _, c := range []struct {
+		model SolidModel
+		tC    float64
+		want  float64
+	}{
+		{MultiplePureSolids, 10, 0.2960}, {MultiplePureSolids, 20, 0.2685}, {MultiplePureSolids, 30, 0.0493},
+		{MultiplePureSolids, 50, 0.0004}, {MultiplePureSolids, 60, 0},
+		{IdealSolidSolution, 10, 0.5585}, {IdealSolidSolution, 30, 0.1476}, {IdealSolidSolution, 50, 0.0020},
+	} {
+		sfc, err := m.SolidFatContent(c.model, c.tC, 0)
+		require.NoError(t, err)
+		require.InDelta(t, c.want, sfc/100, 1e-4, "%s at %g °C (DOMAIN §10 [calc])", c.model, c.tC)
+	}
+	// The clear points bound the curves: solid just below, none at or above.
+	for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution} {
+		cp, err := m.ClearPointC(model, 0)
+		require.NoError(t, err)
+		below, err := m.SolidFatContent(model, cp-0.01, 0)
+		require.NoError(t, err)
+		require.Greater(t, below, 0.0, model.String())
+		at, err := m.SolidFatContent(model, cp+1e-9, 0)
+		require.NoError(t, err)
+		require.InDelta(t, 0, at, 1e-9, model.String())
+	}
+}
+
+// TestAnchors checks the pure-TAG values the package uses against the
+// published anchors (2 K in melting point, 10 % in enthalpy), and reports
+// the correlation's own error where a measured value overrides it.
+func TestAnchors(t *testing.T) {
+	cat := chem.NewCatalogue()
+	acid := func(id string) *chem.FattyAcid {
+		a, ok := cat.ByID(id)
+		require.True(t, ok, id)
+		return a
+	}
+	s, e, p, o := acid("18:0"), acid("18:1 t9"), acid("16:0"), acid("18:1 c9")
+	const sssMass, eeeMass = 891.501, 885.453 // g/mol, DOMAIN §2 [calc]
+	cases := []struct {
+		name       string
+		tag        [3]*chem.FattyAcid
+		poly       Polymorph
+		tC, hKJ    float64 // NaN when the anchor has none
+		source     string
+		corrMaxK   float64 // bound on the correlation's own error
+		corrMaxRel float64
+	}{
+		{"tristearin α", [3]*chem.FattyAcid{s, s, s}, Alpha, 55, 110, "Walstra, Physical Chemistry of Foods 2003, Table 15.3", 2, 0.10},
+		{"tristearin β′", [3]*chem.FattyAcid{s, s, s}, BetaPrime, 63, 150, "Walstra 2003, Table 15.3", 2, 0.10},
+		{"tristearin β", [3]*chem.FattyAcid{s, s, s}, Beta, 73, 189, "Walstra 2003, Table 15.3", 2.5, 0.10},
+		{"tristearin β (J/g)", [3]*chem.FattyAcid{s, s, s}, Beta, math.NaN(), 221.6 * sssMass / 1000, "J. Chem. Eng. Data 50:1624 (2005), 221.6 J/g", 2.5, 0.10},
+		{"trielaidin β", [3]*chem.FattyAcid{e, e, e}, Beta, 41.7, 177.4 * eeeMass / 1000, "thermal study of trielaidin 10-360 K, 177.4 J/g", 2, 0.10},
+		{"trielaidin α", [3]*chem.FattyAcid{e, e, e}, Alpha, 15, 95.1 * eeeMass / 1000, "thermal study of trielaidin 10-360 K, ≈15 °C (288 K), 95.1 J/g", 2, 0.10},
+		{"POS β", [3]*chem.FattyAcid{p, o, s}, Beta, 35.9, math.NaN(), "Arishima et al., JAOCS 1991", 2, 0},
+		{"POP β1", [3]*chem.FattyAcid{p, o, p}, Beta, 36.7, math.NaN(), "Arishima et al., JAOCS 1991", 2, 0},
+		{"SOS β1", [3]*chem.FattyAcid{s, o, s}, Beta, 43.0, math.NaN(), "Arishima et al., JAOCS 1991", 4, 0},
+	}
+	for _, c := range cases {
+		got, err := PureTAGProperties(c.tag[0], c.tag[1], c.tag[2], c.poly)
+		require.NoError(t, err)
+		if !math.IsNaN(c.tC) {
+			require.InDelta(t, c.tC, got.MeltingPointC(), 2, "%s melting point [%s]", c.name, c.source)
+			corr := got.CorrelationMeltingPointK - zeroCelsiusK - c.tC
+			t.Logf("%-20s Tm used %6.2f °C (measured %v), correlation %6.2f °C, correlation error %+.2f K",
+				c.name, got.MeltingPointC(), got.MeltingPointMeasured, got.CorrelationMeltingPointK-zeroCelsiusK, corr)
+			require.LessOrEqual(t, math.Abs(corr), c.corrMaxK, "%s correlation melting point", c.name)
+		}
+		if !math.IsNaN(c.hKJ) {
+			require.InEpsilon(t, c.hKJ, got.EnthalpyKJPerMol, 0.10, "%s enthalpy [%s]", c.name, c.source)
+			rel := got.CorrelationEnthalpyKJPerMol/c.hKJ - 1
+			t.Logf("%-20s ΔH used %6.1f kJ/mol, correlation %6.1f kJ/mol, correlation error %+.1f %%",
+				c.name, got.EnthalpyKJPerMol, got.CorrelationEnthalpyKJPerMol, 100*rel)
+			require.LessOrEqual(t, math.Abs(rel), c.corrMaxRel, "%s correlation enthalpy", c.name)
+		}
+	}
+}
+
+func TestPureTAGPropertiesRejectsBadInput(t *testing.T) {
+	_, err := PureTAGProperties(nil, nil, nil, Beta)
+	ce, ok := chem.AsError(err)
+	require.True(t, ok)
+	require.Equal(t, chem.KindInvalid, ce.Kind)
+	cat := chem.NewCatalogue()
+	s, _ := cat.ByID("18:0")
+	_, err = PureTAGProperties(s, s, s, Polymorph(9))
+	ce, ok = chem.AsError(err)
+	require.True(t, ok)
+	require.Equal(t, []any{"polymorph"}, ce.Fields[0].Path)
+}
+
+func sum(v []float64) float64 {
+	var s float64
+	for _, x := range v {
+		s += x
+	}
+	return s
+}
+
+func TestCompositionSumsAndPositions(t *testing.T) {
+	p := palmLike(t)
+	for _, opt := range []CompositionOptions{
+		{Distribution: FullRandom},
+		{SN2: SN2SeedOil}, {SN2: SN2Palm},
+		{SN2: SN2Enrichment, EnrichmentFactors: []float64{0, 0, 0.2, 1, 0, 1, 1, 1, 0, 0}},
+	} {
+		c, err := TAGComposition(p, opt)
+		require.NoError(t, err)
+		var z float64
+		for _, s := range c.Species {
+			z += s.MoleFraction
+		}
+		require.InDelta(t, 1, z, 1e-12, "species mole fractions sum to 1")
+		require.InDelta(t, 1, sum(c.SN2), 1e-12)
+		require.InDelta(t, 1, sum(c.SN13), 1e-12)
+		for i := range c.Total {
+			// x = (2a + b)/3 (1,3-random-2-random bookkeeping, DOMAIN §9).
+			require.InDelta(t, c.Total[i], (2*c.SN13[i]+c.SN2[i])/3, 1e-12)
+			require.LessOrEqual(t, c.SN2[i], 3*c.Total[i]+1e-15)
+		}
+		n := len(p.Components)
+		if opt.Distribution == FullRandom {
+			require.Equal(t, n*n*(n+1)/2, len(c.Species), "every lumped species")
+		}
+	}
+}
+
+// TestSeedOilRule follows DOMAIN §9: saturated acids stay out of sn-2 when
+// the unsaturated C18 acids are at least a third of the chains; otherwise
+// all unsaturated C18 go to sn-2 and the rest fill it.
+func TestSeedOilRule(t *testing.T) {
+	c, err := TAGComposition(soyLike(t), CompositionOptions{SN2: SN2SeedOil})
+	require.NoError(t, err)
+	var u18 float64
+	for i, a := range c.Acids {
+		if a.DoubleBondCount > 0 && a.Carbons == 18 {
+			u18 += c.Total[i]
+		}
+	}
+	for i, a := range c.Acids {
+		if a.DoubleBondCount > 0 && a.Carbons == 18 {
+			require.InDelta(t, c.Total[i]/u18, c.SN2[i], 1e-12, a.ID)
+		} else {
+			require.Zero(t, c.SN2[i], a.ID)
+		}
+	}
+	// Coconut: unsaturated C18 below a third → all at sn-2, rest in proportion.
+	coco := profileOf(t, acidPct{"8:0", 7.5}, acidPct{"10:0", 6}, acidPct{"12:0", 48.5}, acidPct{"14:0", 18.5},
+		acidPct{"16:0", 8.5}, acidPct{"18:0", 3}, acidPct{"18:1", 6.5}, acidPct{"18:2", 1.5})
+	c, err = TAGComposition(coco, CompositionOptions{SN2: SN2SeedOil})
+	require.NoError(t, err)
+	var rest float64
+	for i, a := range c.Acids {
+		if a.DoubleBondCount == 0 {
+			rest += c.Total[i]
+		}
+	}
+	u18 = 1 - rest
+	for i, a := range c.Acids {
+		if a.DoubleBondCount > 0 {
+			require.InDelta(t, 3*c.Total[i], c.SN2[i], 1e-12, a.ID)
+		} else {
+			require.InDelta(t, (1-3*u18)*c.Total[i]/rest, c.SN2[i], 1e-12, a.ID)
+		}
+	}
+}
+
+// TestPalmRuleReproducesPublishedSN2 checks PalmSN2Selectivity against the
+// palm oil positional analysis of Ong & Goh, Food Nutr. Bull. 23(1):11
+// (2002), Table 2: overall 14:0 1.1, 16:0 44.3, 18:0 4.6, 18:1 39.0,
+// 18:2 10.5; sn-2 16:0 11, 18:0 2, 18:1 65, 18:2 22 (13 % saturated).
+func TestPalmRuleReproducesPublishedSN2(t *testing.T) {
+	p := profileOf(t, acidPct{"14:0", 1.1}, acidPct{"16:0", 44.3}, acidPct{"18:0", 4.6}, acidPct{"18:1", 39.4}, acidPct{"18:2", 10.6})
+	c, err := TAGComposition(p, CompositionOptions{SN2: SN2Palm})
+	require.NoError(t, err)
+	var sat float64
+	for i, a := range c.Acids {
+		if a.DoubleBondCount == 0 {
+			sat += c.SN2[i]
+		}
+	}
+	require.InDelta(t, 0.13, sat, 0.01, "saturated share of sn-2 [Ong & Goh 2002 Table 2]")
+	// DOMAIN §9 [memory]: palm oil has about 5 % tripalmitin.
+	c, err = TAGComposition(palmLike(t), CompositionOptions{SN2: SN2Palm})
+	require.NoError(t, err)
+	for _, s := range c.Species {
+		if s.ShortName() == "PPP" {
+			require.InDelta(t, 0.05, s.MoleFraction, 0.015, "PPP ≈ 5 % [memory, DOMAIN §9]")
+		}
+	}
+}
+
+func TestSuppliedSN2AndPools(t *testing.T) {
+	cat := chem.NewCatalogue()
+	total := palmLike(t)
+	sn2, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Label: "16:0", Percent: 12}, {Label: "18:1", Percent: 66}, {Label: "18:2", Percent: 22}}, 0)
+	require.NoError(t, err)
+	c, err := TAGComposition(total, CompositionOptions{SN2: SN2Supplied, SN2Profile: sn2})
+	require.NoError(t, err)
+	for i, a := range c.Acids {
+		switch a.ID {
+		case "16:0":
+			require.InDelta(t, 0.12, c.SN2[i], 1e-12)
+		case "18:0":
+			require.Zero(t, c.SN2[i])
+		}
+	}
+	// Pools: the overall profile rebuilt from sn-1,3 and sn-2 gives back the
+	// same species.
+	sn13 := chem.FromMoleFractions(c.Acids, c.SN13, chem.BasisMole)
+	back, err := CombinePools(sn13, sn2)
+	require.NoError(t, err)
+	c2, err := TAGComposition(back, CompositionOptions{SN2: SN2Supplied, SN2Profile: sn2})
+	require.NoError(t, err)
+	for i := range c.Species {
+		require.InDelta(t, c.Species[i].MoleFraction, c2.Species[i].MoleFraction, 1e-12)
+	}
+	// An impossible sn-2 composition is rejected with a field path.
+	bad, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Label: "18:0", Percent: 50}, {Label: "18:1", Percent: 50}}, 0)
+	require.NoError(t, err)
+	_, err = TAGComposition(total, CompositionOptions{SN2: SN2Supplied, SN2Profile: bad})
+	ce, ok := chem.AsError(err)
+	require.True(t, ok)
+	require.Equal(t, chem.KindInvalid, ce.Kind)
+	require.Equal(t, []any{"composition", "sn2_profile"}, ce.Fields[0].Path)
+	// Missing sn-2 profile.
+	_, err = TAGComposition(total, CompositionOptions{SN2: SN2Supplied})
+	require.Error(t, err)
+	// Enrichment factors of the wrong length.
+	_, err = TAGComposition(total, CompositionOptions{SN2: SN2Enrichment, EnrichmentFactors: []float64{1}})
+	ce, _ = chem.AsError(err)
+	require.Equal(t, []any{"composition", "sn2_enrichment_factors"}, ce.Fields[0].Path)
+}
+
+func TestOptionsValidation(t *testing.T) {
+	p := palmLike(t)
+	for _, c := range []struct {
+		opt  Options
+		path []any
+	}{
+		{Options{Polymorph: 7}, []any{"polymorph"}},
+		{Options{SolidModel: 9}, []any{"solid_model"}},
+		{Options{TemperaturesC: []float64{20, math.NaN()}}, []any{"temperatures_c", 1}},
+		{Options{SlipThresholdPercent: -1}, []any{"slip_threshold_percent"}},
+		{Options{Calibration: Calibration{TemperatureShiftK: 40}}, []any{"calibration", "temperature_shift_k"}},
+		{Options{Composition: CompositionOptions{PoolFloorMoleFraction: 0.5}}, []any{"composition", "pool_floor_mole_fraction"}},
+	} {
+		_, err := Melt(p, c.opt)
+		ce, ok := chem.AsError(err)
+		require.True(t, ok)
+		require.Equal(t, chem.KindInvalid, ce.Kind)
+		require.Equal(t, c.path, ce.Fields[0].Path)
+	}
+}
+
+// TestCurvesAreMonotoneAndConsistent runs every model and polymorph on the
+// test fats: SFC never rises with temperature, the slip melting point is
+// where the SFC equals the threshold, and the SFC is zero above the clear
+// point.
+func TestCurvesAreMonotoneAndConsistent(t *testing.T) {
+	fats := map[string]struct {
+		p   *chem.Profile
+		sn2 SN2Estimate
+	}{
+		"palm": {palmLike(t), SN2Palm},
+		"soy":  {soyLike(t), SN2SeedOil},
+		"coconut": {profileOf(t, acidPct{"6:0", 0.5}, acidPct{"8:0", 7.5}, acidPct{"10:0", 6.0}, acidPct{"12:0", 48.0},
+			acidPct{"14:0", 18.5}, acidPct{"16:0", 8.5}, acidPct{"18:0", 3.0}, acidPct{"18:1", 6.5}, acidPct{"18:2", 1.5}), SN2SeedOil},
+		"hardened soy": {profileOf(t, acidPct{"16:0", 10.5}, acidPct{"18:0", 12}, acidPct{"18:1", 35}, acidPct{"18:1 t", 30},
+			acidPct{"18:2", 12.5}), SN2SeedOil},
+	}
+	temps := make([]float64, 0, 131)
+	for i := 0; i <= 130; i++ {
+		temps = append(temps, -20+0.5*float64(i))
+	}
+	for name, fat := range fats {
+		for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution} {
+			for _, poly := range []Polymorph{Alpha, BetaPrime, Beta} {
+				opt := Options{Polymorph: poly, SolidModel: model, TemperaturesC: temps, Composition: CompositionOptions{SN2: fat.sn2}}
+				r, err := Melt(fat.p, opt)
+				require.NoError(t, err)
+				for i := 1; i < len(r.Curve); i++ {
+					require.LessOrEqual(t, r.Curve[i].SFCPercent, r.Curve[i-1].SFCPercent+1e-9,
+						"%s %s %s: SFC rises between %g and %g °C", name, model, poly, r.Curve[i-1].TemperatureC, r.Curve[i].TemperatureC)
+				}
+				f, err := Prepare(fat.p, opt)
+				require.NoError(t, err)
+				if r.SlipMeltingPointDefined {
+					v, err := f.SolidFatContent(r.SlipMeltingPointC)
+					require.NoError(t, err)
+					require.InDelta(t, r.Parameters.SlipThresholdPercent, v, 1e-4, "%s %s %s slip", name, model, poly)
+					tc, ok, err := SlipMeltingPointC(fat.p, opt)
+					require.NoError(t, err)
+					require.True(t, ok)
+					require.InDelta(t, r.SlipMeltingPointC, tc, 1e-5, "the cheap slip function agrees with Melt")
+				}
+				require.LessOrEqual(t, r.SlipMeltingPointC, r.ClearPointC)
+				v, err := f.SolidFatContent(r.ClearPointC + 1e-6)
+				require.NoError(t, err)
+				require.InDelta(t, 0, v, 1e-9)
+				v, err = f.SolidFatContent(r.ClearPointC - 0.05)
+				require.NoError(t, err)
+				require.Greater(t, v, 0.0)
+			}
+		}
+	}
+}
+
+// TestPoolingChangesLittle compares pooled and unpooled results on the
+// validation fats.
+func TestPoolingChangesLittle(t *testing.T) {
+	coco := profileOf(t, acidPct{"6:0", 0.5}, acidPct{"8:0", 7.5}, acidPct{"10:0", 6.0}, acidPct{"12:0", 48.0},
+		acidPct{"14:0", 18.5}, acidPct{"16:0", 8.5}, acidPct{"18:0", 3.0}, acidPct{"18:1", 6.5}, acidPct{"18:2", 1.5})
+	for _, p := range []*chem.Profile{palmLike(t), soyLike(t), coco} {
+		pooled, err := Melt(p, Options{Composition: CompositionOptions{SN2: SN2Palm}})
+		require.NoError(t, err)
+		full, err := Melt(p, Options{Composition: CompositionOptions{SN2: SN2Palm, NoPooling: true}})
+		require.NoError(t, err)
+		require.Less(t, pooled.PooledMassPercent, 3.0)
+		require.InDelta(t, full.ClearPointC, pooled.ClearPointC, 0.25)
+		if full.SlipMeltingPointDefined {
+			require.InDelta(t, full.SlipMeltingPointC, pooled.SlipMeltingPointC, 0.25)
+		}
+		for i := range full.Curve {
+			require.InDelta(t, full.Curve[i].SFCPercent, pooled.Curve[i].SFCPercent, 0.3)
+		}
+	}
+}
+
+func TestMeltReportsSpeciesAndWarnings(t *testing.T) {
+	r, err := Melt(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2Palm}})
+	require.NoError(t, err)
+	require.Len(t, r.MainSpecies, DefaultMainSpecies)
+	require.Equal(t, "POP", r.MainSpecies[0].ShortName)
+	require.Equal(t, "16:0/18:1 c9/16:0", r.MainSpecies[0].Label)
+	for i := 1; i < len(r.MainSpecies); i++ {
+		require.LessOrEqual(t, r.MainSpecies[i].MassPercent, r.MainSpecies[i-1].MassPercent)
+	}
+	require.Len(t, r.ReportingPoints, len(reportingTemperaturesC))
+	require.Equal(t, DefaultTemperaturesC(), curveTemps(r.Curve))
+	codes := map[string]bool{}
+	for _, w := range r.Warnings {
+		codes[w.Code] = true
+	}
+	require.True(t, codes[WarnOutsideFit], "16:1 and 20:x are outside the fitted data")
+	require.True(t, codes[WarnPooled])
+	require.Equal(t, BetaPrime, r.Parameters.Polymorph)
+	require.Equal(t, MultiplePureSolids, r.Parameters.SolidModel)
+	require.NotEmpty(t, r.Assumptions)
+}
+
+func curveTemps(c []SFCPoint) []float64 {
+	out := make([]float64, len(c))
+	for i, p := range c {
+		out[i] = p.TemperatureC
+	}
+	return out
+}
+
+// TestCalibrationRecoversShift calibrates against measurements made by the
+// model itself with a known shift, then against a slip point alone.
+func TestCalibrationRecoversShift(t *testing.T) {
+	p := palmLike(t)
+	opt := Options{Composition: CompositionOptions{SN2: SN2Palm}}
+	truth := opt
+	truth.Calibration = Calibration{TemperatureShiftK: 3.5}
+	ref, err := Melt(p, truth)
+	require.NoError(t, err)
+	var pts []SFCPoint
+	for _, q := range ref.ReportingPoints {
+		pts = append(pts, q)
+	}
+	rep, err := Calibrate(context.Background(), p, opt, Measurements{SFC: pts, SlipMeltingPointC: ref.SlipMeltingPointC, HasSlipMeltingPoint: true})
+	require.NoError(t, err)
+	require.InDelta(t, 3.5, rep.Calibration.TemperatureShiftK, 1e-3)
+	require.InDelta(t, DefaultSlipThresholdPercent, rep.Calibration.SlipThresholdPercent, 1e-3)
+	require.Greater(t, rep.Before.SFCRMSErrorPercent, 1.0)
+	require.Less(t, rep.After.SFCRMSErrorPercent, 1e-3)
+	require.InDelta(t, 0, rep.After.SlipErrorK, 1e-3)
+
+	// Slip point only: the published palm oil slip point, 36 °C, middle of
+	// 33-39 °C [Codex CXS 210; trade specification].
+	rep, err = Calibrate(context.Background(), p, opt, Measurements{SlipMeltingPointC: 36, HasSlipMeltingPoint: true})
+	require.NoError(t, err)
+	require.Zero(t, rep.Calibration.SlipThresholdPercent)
+	require.InDelta(t, 0, rep.After.SlipErrorK, 1e-3)
+	require.Greater(t, math.Abs(rep.Before.SlipErrorK), math.Abs(rep.After.SlipErrorK))
+	opt.Calibration = rep.Calibration
+	r, err := Melt(p, opt)
+	require.NoError(t, err)
+	require.InDelta(t, 36, r.SlipMeltingPointC, 1e-3)
+
+	_, err = Calibrate(context.Background(), p, opt, Measurements{})
+	ce, ok := chem.AsError(err)
+	require.True(t, ok)
+	require.Equal(t, chem.KindInvalid, ce.Kind)
+}

@@ -1,0 +1,279 @@
+package melting
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/chem"
+)
+
+type validationCase struct {
+	Name              string             `json:"name"`
+	Composition       map[string]float64 `json:"composition"`
+	CompositionSource string             `json:"composition_source"`
+	SN2               string             `json:"sn2_estimate"`
+	SlipRange         [2]float64         `json:"slip_range_c"`
+	SlipTarget        float64            `json:"slip_target_c"`
+	SlipSource        string             `json:"slip_source"`
+	SFCMemory         [][2]float64       `json:"sfc_memory"`
+	SFCTolerance      float64            `json:"sfc_memory_tolerance"`
+	SFCSource         string             `json:"sfc_source"`
+}
+
+func loadValidationCases(t testing.TB) []validationCase {
+	t.Helper()
+	raw, err := os.ReadFile(filepath.Join(testdataDir, "validation_cases.json"))
+	require.NoError(t, err)
+	var f struct {
+		Cases []validationCase `json:"cases"`
+	}
+	require.NoError(t, json.Unmarshal(raw, &f))
+	return f.Cases
+}
+
+func (c validationCase) profile(t testing.TB) *chem.Profile {
+	var lines []acidPct
+	for l, v := range c.Composition {
+		lines = append(lines, acidPct{l, v})
+	}
+	sort.Slice(lines, func(i, j int) bool { return lines[i].label < lines[j].label })
+	return profileOf(t, lines...)
+}
+
+func (c validationCase) sn2(t testing.TB) SN2Estimate {
+	for _, e := range []SN2Estimate{SN2SeedOil, SN2Palm} {
+		if e.String() == c.SN2 {
+			return e
+		}
+	}
+	t.Fatalf("sn-2 estimate %q", c.SN2)
+	return 0
+}
+
+// configResult is one validation run of a configuration.
+type configResult struct {
+	model     SolidModel
+	polymorph Polymorph
+	threshold float64
+	slip      []float64 // per case, °C
+	inside    int
+	mae       float64 // mean |slip − target|, K
+	sfcMAE    float64 // mean |SFC − memory value| over the memory points
+	sfcMax    float64
+	sfcOK     bool // every memory point within its tolerance
+}
+
+var validationThresholds = []float64{3, 4, 5}
+
+func runValidation(t testing.TB, cases []validationCase) []configResult {
+	var out []configResult
+	for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution} {
+		for _, poly := range []Polymorph{Alpha, BetaPrime, Beta} {
+			for _, thr := range validationThresholds {
+				cr := configResult{model: model, polymorph: poly, threshold: thr, sfcOK: true}
+				var sfcN int
+				for _, c := range cases {
+					opt := Options{Polymorph: poly, SolidModel: model, SlipThresholdPercent: thr,
+						Composition: CompositionOptions{SN2: c.sn2(t)}}
+					r, err := Melt(c.profile(t), opt)
+					require.NoError(t, err)
+					s := r.SlipMeltingPointC
+					cr.slip = append(cr.slip, s)
+					if s >= c.SlipRange[0] && s <= c.SlipRange[1] {
+						cr.inside++
+					}
+					cr.mae += math.Abs(s - c.SlipTarget)
+					if len(c.SFCMemory) > 0 {
+						f, err := Prepare(c.profile(t), opt)
+						require.NoError(t, err)
+						for _, pt := range c.SFCMemory {
+							v, err := f.SolidFatContent(pt[0])
+							require.NoError(t, err)
+							d := math.Abs(v - pt[1])
+							cr.sfcMAE += d
+							cr.sfcMax = math.Max(cr.sfcMax, d)
+							if d > c.SFCTolerance {
+								cr.sfcOK = false
+							}
+							sfcN++
+						}
+					}
+				}
+				cr.mae /= float64(len(cases))
+				if sfcN > 0 {
+					cr.sfcMAE /= float64(sfcN)
+				}
+				out = append(out, cr)
+			}
+		}
+	}
+	return out
+}
+
+// chooseDefaults applies the documented rule: the polymorph is β′ (DOMAIN
+// §10: unstabilised SFC of hardened and palm-based fats reflects β′); among
+// the solid models and the thresholds of the trade's 3–5 % range, drop any
+// configuration whose SFC misses a [memory] palm value by more than its
+// generous tolerance, then take the smallest mean slip-point error.
+func chooseDefaults(results []configResult) configResult {
+	best := configResult{mae: math.Inf(1)}
+	for _, r := range results {
+		if r.polymorph != DefaultPolymorph || !r.sfcOK {
+			continue
+		}
+		if r.mae < best.mae-1e-9 {
+			best = r
+		}
+	}
+	return best
+}
+
+func TestValidation(t *testing.T) {
+	cases := loadValidationCases(t)
+	results := runValidation(t, cases)
+	chosen := chooseDefaults(results)
+	require.Equal(t, DefaultSolidModel, chosen.model, "the default solid model is the one validation picks")
+	require.Equal(t, DefaultSlipThresholdPercent, chosen.threshold, "the default threshold is the one validation picks")
+
+	doc := validationMarkdown(t, cases, results, chosen)
+	path := filepath.Join(testdataDir, "VALIDATION.md")
+	if *update {
+		require.NoError(t, os.WriteFile(path, []byte(doc), 0o644))
+	}
+	published, err := os.ReadFile(path)
+	require.NoError(t, err)
+	require.Equal(t, doc, string(published), "VALIDATION.md is stale; run go test ./chem/melting -run TestValidation -update")
+
+	// The best configuration of all beats the published 4.5 K error of
+	// thermodynamic models of this kind (Teles dos Santos, OCL 25:D107, 2018).
+	best := math.Inf(1)
+	for _, r := range results {
+		best = math.Min(best, r.mae)
+	}
+	require.Less(t, best, 4.5)
+}
+
+func validationMarkdown(t testing.TB, cases []validationCase, results []configResult, chosen configResult) string {
+	var b strings.Builder
+	w := func(format string, a ...any) { fmt.Fprintf(&b, format, a...) }
+	w("# Melting model validation\n\n")
+	w("Generated by `go test ./chem/melting -run TestValidation -update` (chem/melting/validation_test.go) from\n")
+	w("`validation_cases.json`; do not edit by hand. Predictions use the fitted pure-TAG correlation\n")
+	w("(`fit_coefficients.json`) with measured overrides, the 1,3-random-2-random distribution with the sn-2 rule\n")
+	w("named per case, and species pooled below a mole fraction of %g.\n\n", DefaultPoolFloorMoleFraction)
+
+	w("## Cases and sources\n\n| case | composition (FAME wt %%) | sn-2 rule | published slip melting point | source |\n|---|---|---|---|---|\n")
+	for _, c := range cases {
+		var keys []string
+		for k := range c.Composition {
+			keys = append(keys, k)
+		}
+		sort.Slice(keys, func(i, j int) bool { return acidOrder(keys[i]) < acidOrder(keys[j]) })
+		var parts []string
+		for _, k := range keys {
+			parts = append(parts, fmt.Sprintf("%s %g", k, c.Composition[k]))
+		}
+		w("| %s | %s (%s) | %s | %g–%g °C, target %g °C | %s |\n", c.Name, strings.Join(parts, ", "), c.CompositionSource,
+			c.SN2, c.SlipRange[0], c.SlipRange[1], c.SlipTarget, c.SlipSource)
+	}
+	for _, c := range cases {
+		if len(c.SFCMemory) > 0 {
+			w("\nSFC check values for %s: ", c.Name)
+			var parts []string
+			for _, pt := range c.SFCMemory {
+				parts = append(parts, fmt.Sprintf("%g %% at %g °C", pt[1], pt[0]))
+			}
+			w("%s, ±%g points — %s.\n", strings.Join(parts, ", "), c.SFCTolerance, c.SFCSource)
+		}
+	}
+	w("\nNo published SFC curve could be retrieved for these oils, so no SFC error on published data is claimed.\n")
+
+	w("\n## Defaults and how they were chosen\n\n")
+	w("Rule (chooseDefaults in validation_test.go): the polymorph is β′, because unstabilised SFC of hardened and\n")
+	w("palm-based fats mostly reflects β′ (DOMAIN §10); among both solid models and the slip thresholds of the trade's\n")
+	w("3–5 %% range [practice], configurations whose palm SFC misses a [memory] check value by more than its tolerance\n")
+	w("are dropped; the smallest mean absolute slip-point error then wins.\n\n")
+	w("Chosen: **%s, %s, slip threshold %g %%**. Mean absolute slip-point error %.1f K, %d of %d cases inside their\n",
+		chosen.model, chosen.polymorph, chosen.threshold, chosen.mae, chosen.inside, len(cases))
+	w("published range, palm SFC mean absolute deviation from the [memory] values %.1f points (max %.1f).\n\n", chosen.sfcMAE, chosen.sfcMax)
+	bestAll := results[0]
+	for _, r := range results {
+		if r.mae < bestAll.mae {
+			bestAll = r
+		}
+	}
+	w("The ideal solid solution in β′ has a smaller slip-point error, but it puts palm oil at about 87 %% solid at 10 °C\n")
+	w("and the lauric oils at 100 %%: every TAG, even triolein, is forced into one solid, which is not how natural fats\n")
+	w("crystallise (POP/OOP and lauric/non-lauric TAG pairs are eutectic; Zhang et al., JAOCS 84, 2007; Macridachis et\n")
+	w("al., J. Therm. Anal. Calorim. 2023). The eutectic model in β′ gives palm SFC of the right size at 10–20 °C but\n")
+	w("melts out too early: its slip points are **%.0f–%.0f K low**, worse than the 4.5 K that published thermodynamic\n",
+		minAbs(chosen, cases), maxAbs(chosen, cases))
+	w("models of this kind reach (Teles dos Santos, OCL 25:D107, 2018). The best configuration overall is **%s, %s,\n", bestAll.model, bestAll.polymorph)
+	w("%g %%** with %.1f K mean error (%d of %d inside their ranges): the higher β melting points stand in for the mixed\n",
+		bestAll.threshold, bestAll.mae, bestAll.inside, len(cases))
+	w("crystals that the pure-solids model leaves out. β′ stays the default as the physically right form; for planning\n")
+	w("numbers calibrate the fat (Calibrate: one slip point or a few SFC points fit the temperature shift), or choose β.\n")
+
+	w("\n## Slip melting points, °C (error = predicted − target, K)\n\n| model | polymorph | threshold %% |")
+	for _, c := range cases {
+		w(" %s |", c.Name)
+	}
+	w(" mean abs error K | inside range | palm SFC MAD (max) vs [memory] |\n|---|---|---|")
+	for range cases {
+		w("---|")
+	}
+	w("---|---|---|\n")
+	for _, r := range results {
+		mark := ""
+		if r.model == chosen.model && r.polymorph == chosen.polymorph && r.threshold == chosen.threshold {
+			mark = " **(default)**"
+		}
+		w("| %s%s | %s | %g |", r.model, mark, r.polymorph, r.threshold)
+		for i, c := range cases {
+			w(" %.1f (%+.1f) |", r.slip[i], r.slip[i]-c.SlipTarget)
+		}
+		w(" %.1f | %d/%d | %.1f (%.1f) |\n", r.mae, r.inside, len(cases), r.sfcMAE, r.sfcMax)
+	}
+	w("\n## Default SFC curves, %%\n\n| case | 10 °C | 20 °C | 25 °C | 30 °C | 35 °C | 37 °C | 40 °C | clear point °C |\n|---|---|---|---|---|---|---|---|---|\n")
+	for _, c := range cases {
+		r, err := Melt(c.profile(t), Options{Composition: CompositionOptions{SN2: c.sn2(t)}})
+		require.NoError(t, err)
+		at := map[float64]float64{}
+		for _, p := range r.ReportingPoints {
+			at[p.TemperatureC] = p.SFCPercent
+		}
+		w("| %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f |\n", c.Name, at[10], at[20], at[25], at[30], at[35], at[37], at[40], r.ClearPointC)
+	}
+	return b.String()
+}
+
+func minAbs(r configResult, cases []validationCase) float64 {
+	m := math.Inf(1)
+	for i, c := range cases {
+		m = math.Min(m, math.Abs(r.slip[i]-c.SlipTarget))
+	}
+	return m
+}
+
+func maxAbs(r configResult, cases []validationCase) float64 {
+	var m float64
+	for i, c := range cases {
+		m = math.Max(m, math.Abs(r.slip[i]-c.SlipTarget))
+	}
+	return m
+}
+
+// acidOrder sorts labels such as "8:0", "18:1" by carbons then bonds.
+func acidOrder(label string) float64 {
+	var c, d int
+	fmt.Sscanf(label, "%d:%d", &c, &d)
+	return float64(c) + float64(d)/10
+}
