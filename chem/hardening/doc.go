@@ -25,9 +25,88 @@
 //
 // All "per tonne" figures are per tonne (1000 kg) of feed oil.
 //
+// # Forecast and calibration
+//
+// The kinetic part (kinetics.go, forecast.go, presets.go, fit.go) predicts
+// what a catalyst makes of an oil. [Forecast] takes a feed profile, a target
+// (final iodine value, iodine-value drop or hydrogen per tonne) and a
+// [Catalyst], and returns the product profile, its trans and saturated
+// shares, the hydrogen taken up and a path table; [Presets] lists documented
+// catalysts; [Fit] calibrates a catalyst on observed products of plant
+// batches.
+//
+// The model is the consecutive pseudo-first-order scheme 18:3 → 18:2 →
+// 18:1 → 18:0 with rate constants k1, k2, k3 (Bailey 1949; Albright 1965),
+// written with the selectivities S_Ln = k1/k2 and S_R = k2/k3, plus a
+// compact cis/trans network (DOMAIN §8): a share φ of the monoenes formed
+// from all-cis dienes (and of the dienes formed from trienes) leaves the
+// catalyst as trans; cis monoenes isomerise to trans at rate ι·k3 and back
+// at (ι/K)·k3, relaxing towards trans:cis = K; trans monoenes saturate at
+// ρ·k3. Rates are relative to k3, so the state is a function of the path
+// variable τ = ∫k3 dt (time × activity), and composition against iodine
+// value depends on the six ratios only. For a source that already carries
+// a fraction t/d of trans bonds the product's trans share is
+// t/d + (1 − t/d)·φ; lumped "C:D t" entries are taken to carry one trans
+// bond.
+//
+// Every unsaturated acid of the catalogue is handled:
+//   - Monoenes C16, C18, C20, C22 have cis and trans pools. Newly formed
+//     trans monoenes go to the lumped entries "16:1 t", "18:1 t", "20:1 t",
+//     "22:1 t" (hardening shifts positions, so a single isomer such as
+//     elaidic acid would be wrong); a feed's specific trans isomers (elaidic
+//     "18:1 t9", vaccenic "18:1 t11", "16:1 t9") keep their identity and
+//     relax to their own cis isomer; the lumped pool relaxes to the chain's
+//     common cis isomer (oleic for C18). Cis monoenes of other positions
+//     (petroselinic, cis-vaccenic) isomerise into the same lumped pool.
+//   - Monoenes of chains without a trans entry (10:1, 14:1, 17:1, 24:1)
+//     only saturate; a warning says their trans is not tracked.
+//   - C18 dienes, all isomers, hydrogenate at k2: the cis product is oleic
+//     (standing for every cis 18:1 position isomer), the trans product
+//     "18:1 t". Trienes form linoleic acid and the trans diene pool "18:2 t".
+//     C20 and C22 dienes behave alike with their own chains.
+//   - Polyenes with d ≥ 3 double bonds (18:3, 18:4, 20:3–20:5, 22:4–22:6)
+//     lose one double bond at a time, at k1·(d − 1)/2: proportional to the
+//     number of bis-allylic methylene groups and equal to k1 for a C18
+//     triene. The intermediate is the catalogue acid obtained by deleting
+//     one double bond, the one nearest the carboxyl group first (EPA →
+//     20:4 n-3 → 20:3 n-3 → 20:2 → 20:1 c11); where the catalogue holds no
+//     acid with d − 1 double bonds on that chain (22:3) the step goes to the
+//     next level it holds (22:4 → 22:2). The catalogue has no trans entries
+//     for C20/C22 polyenes, so trans formed there is counted as cis and the
+//     trans figures of marine oils are a lower bound (with a warning).
+//     Limits: real marine-oil hardening shifts and isomerises double bonds
+//     in ways no catalogue of named acids can express, conjugated dienes
+//     hydrogenate faster than linoleic acid, and the (d − 1) rule is a
+//     simplification; the forecast is a planning estimate for such oils.
+//   - Saturated acids are inert. Hydroxy acids are refused: ricinoleic acid
+//     hardens to 12-hydroxystearic acid, which the catalogue does not hold.
+//
+// The system is linear with constant coefficients in τ, so it is solved
+// exactly: x(τ) = exp(Aτ)·x(0), by gonum's scaling-and-squaring Padé
+// matrix exponential on one small block per chain length; an
+// eigen-decomposition would be cheaper to re-evaluate but loses accuracy
+// without bound where rates coincide or nearly do (every cis monoene decays
+// at the same rate, and a diene rate can meet the cis/trans pair's), which
+// this network makes common. With the trans network off the
+// C18 part reduces to the Bateman closed form, which the tests use to check
+// the general solver. The iodine value falls strictly along the path, so a
+// target is found by a bracketed, safeguarded Newton root finder on τ (the
+// derivative dIV/dτ is exact) to 1e-9 iodine-value units. Iodine values
+// along the path are those of the oil itself, per 100 g of oil — for the
+// product the product basis of [ProductBasis], what a laboratory measures
+// and what chem.IodineValue computes from the composition; the hydrogen
+// figures are exact for that convention.
+//
+// When an sn-2 composition is given, the sn-2 and sn-1,3 pools (sn-1,3 =
+// (3x − b)/2 in mole terms, Vander Wal 1960; Coleman 1961) are hardened
+// with the same τ, since hardening barely moves acids between positions
+// [pub: J. Japan Oil Chem. Soc. 20:10 (1971)]. The model being linear, the
+// pools recombine exactly to the overall product.
+//
 // The package is pure: value types and deterministic functions, standard
-// library only. Errors are *chem.Error values whose field paths use the
-// names listed on [HydrogenRequest].
+// library and gonum only. Errors are *chem.Error values whose field paths
+// use the names listed on [HydrogenRequest], [ForecastRequest] and
+// [FitRequest].
 //
 // Caution: the results are estimates for planning. Hydrogen is extremely
 // flammable and forms explosive mixtures with air over a wide range;

@@ -1,0 +1,675 @@
+package hardening
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+
+	"lipidsvc/chem"
+)
+
+// ---------------------------------------------------------------------------
+// Catalyst parameters
+
+// Catalyst holds the six dimensionless parameters of the hardening network
+// (see the package documentation for the scheme). Every rate is relative to
+// k3, the rate constant of cis-monoene saturation (oleic → stearic), so the
+// parameters describe selectivity, not activity: catalyst load, hydrogen
+// supply and temperature set how fast a batch moves along the path, the
+// parameters set which path it follows. Field paths in errors are
+// ("catalyst", <name>) with the names given by [Parameter.String].
+type Catalyst struct {
+	// LinolenicSelectivity is S_Ln = k1/k2, the rate of triene
+	// hydrogenation (18:3 → 18:2) over that of dienes (18:2 → 18:1).
+	LinolenicSelectivity float64
+	// LinoleicSelectivity is S_R = k2/k3, the rate of diene hydrogenation
+	// (18:2 → 18:1) over that of cis monoenes (18:1 → 18:0).
+	LinoleicSelectivity float64
+	// TransShare is φ, the fraction of the monoenes formed from all-cis
+	// dienes that leave the catalyst as trans isomers, in [0, 1]. The same
+	// share applies to the dienes formed from trienes.
+	TransShare float64
+	// IsomerisationRate is the rate constant of cis monoene → trans monoene
+	// relative to k3, ≥ 0. The reverse reaction runs at
+	// IsomerisationRate/TransCisEquilibrium, so that the two pools relax
+	// towards trans:cis = TransCisEquilibrium.
+	IsomerisationRate float64
+	// TransCisEquilibrium is K, the trans:cis ratio of monoenes at
+	// geometric equilibrium (about 2:1 to 3:1 for internal 18:1 [memory]).
+	TransCisEquilibrium float64
+	// TransSaturationRate is ρ, the saturation rate of trans monoenes
+	// relative to that of cis monoenes (k3).
+	TransSaturationRate float64
+}
+
+// Parameter names one of the six catalyst parameters, for fitting and for
+// error paths.
+type Parameter int
+
+const (
+	// ParamLinolenicSelectivity is Catalyst.LinolenicSelectivity.
+	ParamLinolenicSelectivity Parameter = iota + 1
+	// ParamLinoleicSelectivity is Catalyst.LinoleicSelectivity.
+	ParamLinoleicSelectivity
+	// ParamTransShare is Catalyst.TransShare.
+	ParamTransShare
+	// ParamIsomerisationRate is Catalyst.IsomerisationRate.
+	ParamIsomerisationRate
+	// ParamTransCisEquilibrium is Catalyst.TransCisEquilibrium.
+	ParamTransCisEquilibrium
+	// ParamTransSaturationRate is Catalyst.TransSaturationRate.
+	ParamTransSaturationRate
+)
+
+// AllParameters lists the six parameters in their canonical order.
+func AllParameters() []Parameter {
+	return []Parameter{
+		ParamLinolenicSelectivity, ParamLinoleicSelectivity, ParamTransShare,
+		ParamIsomerisationRate, ParamTransCisEquilibrium, ParamTransSaturationRate,
+	}
+}
+
+// String returns the parameter's field name, as used in error paths
+// ("linolenic_selectivity", "linoleic_selectivity", "trans_share",
+// "isomerisation_rate", "trans_cis_equilibrium", "trans_saturation_rate").
+func (p Parameter) String() string {
+	switch p {
+	case ParamLinolenicSelectivity:
+		return "linolenic_selectivity"
+	case ParamLinoleicSelectivity:
+		return "linoleic_selectivity"
+	case ParamTransShare:
+		return "trans_share"
+	case ParamIsomerisationRate:
+		return "isomerisation_rate"
+	case ParamTransCisEquilibrium:
+		return "trans_cis_equilibrium"
+	case ParamTransSaturationRate:
+		return "trans_saturation_rate"
+	default:
+		return "Parameter(" + strconv.Itoa(int(p)) + ")"
+	}
+}
+
+// ParseParameter reads a parameter field name as returned by String.
+func ParseParameter(name string) (Parameter, bool) {
+	for _, p := range AllParameters() {
+		if p.String() == name {
+			return p, true
+		}
+	}
+	return 0, false
+}
+
+// Range returns the closed interval of values the model accepts for p.
+// The bounds are wide enough for every catalyst the literature describes
+// (S_R up to a few hundred for copper, S_Ln up to about 15 [memory]) and
+// narrow enough to keep the network numerically well behaved. The
+// isomerisation rate and the trans share may be 0 (no trans formed); every
+// other parameter must be positive, so that the path always reaches full
+// saturation in the limit.
+func (p Parameter) Range() (lo, hi float64) {
+	switch p {
+	case ParamLinolenicSelectivity:
+		return 0.1, 100
+	case ParamLinoleicSelectivity:
+		return 0.1, 1000
+	case ParamTransShare:
+		return 0, 1
+	case ParamIsomerisationRate:
+		return 0, 100
+	case ParamTransCisEquilibrium:
+		return 0.1, 20
+	case ParamTransSaturationRate:
+		return 0.01, 10
+	default:
+		return math.NaN(), math.NaN()
+	}
+}
+
+// Value returns the value of parameter p in c.
+func (c Catalyst) Value(p Parameter) float64 {
+	switch p {
+	case ParamLinolenicSelectivity:
+		return c.LinolenicSelectivity
+	case ParamLinoleicSelectivity:
+		return c.LinoleicSelectivity
+	case ParamTransShare:
+		return c.TransShare
+	case ParamIsomerisationRate:
+		return c.IsomerisationRate
+	case ParamTransCisEquilibrium:
+		return c.TransCisEquilibrium
+	case ParamTransSaturationRate:
+		return c.TransSaturationRate
+	default:
+		return math.NaN()
+	}
+}
+
+// With returns a copy of c with parameter p set to v.
+func (c Catalyst) With(p Parameter, v float64) Catalyst {
+	switch p {
+	case ParamLinolenicSelectivity:
+		c.LinolenicSelectivity = v
+	case ParamLinoleicSelectivity:
+		c.LinoleicSelectivity = v
+	case ParamTransShare:
+		c.TransShare = v
+	case ParamIsomerisationRate:
+		c.IsomerisationRate = v
+	case ParamTransCisEquilibrium:
+		c.TransCisEquilibrium = v
+	case ParamTransSaturationRate:
+		c.TransSaturationRate = v
+	}
+	return c
+}
+
+// Validate checks every parameter against its [Parameter.Range] and returns
+// a chem.KindInvalid *chem.Error listing each offending field under
+// ("catalyst", <name>), or nil.
+func (c Catalyst) Validate() error {
+	var errs fieldErrors
+	c.validateInto(&errs, "catalyst")
+	return errs.err("catalyst parameters")
+}
+
+func (c Catalyst) validateInto(errs *fieldErrors, prefix ...any) {
+	for _, p := range AllParameters() {
+		v := c.Value(p)
+		lo, hi := p.Range()
+		if !isFinite(v) || v < lo || v > hi {
+			path := append(append([]any{}, prefix...), p.String())
+			errs.invalid(fmt.Sprintf("must be a finite number from %g to %g", lo, hi), path...)
+		}
+	}
+}
+
+// ---------------------------------------------------------------------------
+// Reaction network
+
+// rateKind is the catalyst rate constant an edge runs at, relative to k3.
+type rateKind int
+
+const (
+	rateTriene     rateKind = iota // k1 = S_Ln·S_R, scaled by (d−1)/2
+	rateDiene                      // k2 = S_R
+	rateCisMono                    // k3 = 1
+	rateTransMono                  // ρ
+	rateCisToTrans                 // ι
+	rateTransToCis                 // ι/K
+)
+
+// split is the share of an edge's source rate that goes to its product.
+type split int
+
+const (
+	splitWhole split = iota // the whole rate
+	splitTrans              // t/d + (1 − t/d)·φ
+	splitCis                // (1 − t/d)·(1 − φ)
+)
+
+// edge is one first-order reaction from one acid to another.
+type edge struct {
+	from, to int
+	rate     rateKind
+	// mult scales the base rate: (d−1)/2 for polyenes of d ≥ 3 double bonds,
+	// 1 otherwise.
+	mult  float64
+	split split
+	// transFrac is t/d, the fraction of the source's double bonds that are
+	// already trans.
+	transFrac float64
+}
+
+// value returns the edge's rate constant relative to k3 for catalyst c.
+func (e edge) value(c Catalyst) float64 {
+	var base float64
+	switch e.rate {
+	case rateTriene:
+		base = c.LinolenicSelectivity * c.LinoleicSelectivity
+	case rateDiene:
+		base = c.LinoleicSelectivity
+	case rateCisMono:
+		base = 1
+	case rateTransMono:
+		base = c.TransSaturationRate
+	case rateCisToTrans:
+		base = c.IsomerisationRate
+	case rateTransToCis:
+		base = c.IsomerisationRate / c.TransCisEquilibrium
+	}
+	switch e.split {
+	case splitTrans:
+		base *= e.transFrac + (1-e.transFrac)*c.TransShare
+	case splitCis:
+		base *= (1 - e.transFrac) * (1 - c.TransShare)
+	}
+	return base * e.mult
+}
+
+// block is the part of the network on one chain length: hardening never
+// changes the number of carbons, so each chain length evolves on its own and
+// the matrix exponential is taken of small blocks.
+type block struct {
+	idx    []int      // network indices of the block's acids
+	rates  *mat.Dense // rate matrix in block coordinates
+	scaled *mat.Dense // scratch: rates·τ
+	exp    *mat.Dense // scratch: exp(rates·τ)
+}
+
+// network is the reaction scheme built for one feed: which acids take part
+// and how they react. Its topology depends on the feed only; the rate
+// constants are filled per catalyst by setCatalyst.
+type network struct {
+	acids  []*chem.FattyAcid
+	d      []float64 // double bonds per acid
+	mass   []float64 // free-acid molar mass, g/mol
+	edges  []edge
+	blocks []*block
+	// untracked lists feed acids whose trans isomers the model cannot
+	// express (no trans entry in the catalogue), for a warning.
+	untracked []string
+}
+
+// acidIndex finds acids in the catalogue by structure.
+type acidIndex struct {
+	cat    *chem.Catalogue
+	groups map[[2]int][]*chem.FattyAcid // (carbons, double bonds) → entries, catalogue order, no hydroxy acids
+}
+
+func newAcidIndex(cat *chem.Catalogue) *acidIndex {
+	ix := &acidIndex{cat: cat, groups: map[[2]int][]*chem.FattyAcid{}}
+	for _, a := range cat.Acids() {
+		if a.HydroxyPosition > 0 {
+			continue
+		}
+		k := [2]int{a.Carbons, a.DoubleBondCount}
+		ix.groups[k] = append(ix.groups[k], a)
+	}
+	return ix
+}
+
+// saturated returns the saturated acid of the chain length.
+func (ix *acidIndex) saturated(carbons int) *chem.FattyAcid {
+	g := ix.groups[[2]int{carbons, 0}]
+	if len(g) == 0 {
+		return nil
+	}
+	return g[0]
+}
+
+// ladder returns the cis entry that stands for "C:D" as an intermediate:
+// the catalogue's preferred (common) isomer when it is all-cis, otherwise
+// the first all-cis entry. Saturated chains return the saturated acid.
+func (ix *acidIndex) ladder(carbons, d int) *chem.FattyAcid {
+	if d == 0 {
+		return ix.saturated(carbons)
+	}
+	var first *chem.FattyAcid
+	for _, a := range ix.groups[[2]int{carbons, d}] {
+		if !a.AllCis() {
+			continue
+		}
+		if a.Preferred {
+			return a
+		}
+		if first == nil {
+			first = a
+		}
+	}
+	return first
+}
+
+// lumpedTrans returns the "C:D t" entry (trans isomers, positions not
+// resolved), or nil when the catalogue has none for that chain.
+func (ix *acidIndex) lumpedTrans(carbons, d int) *chem.FattyAcid {
+	for _, a := range ix.groups[[2]int{carbons, d}] {
+		if a.LumpedGeometry == chem.Trans {
+			return a
+		}
+	}
+	return nil
+}
+
+// lowerLevel returns the highest double-bond count below d for which the
+// catalogue holds an entry of the chain length (0, the saturated acid, at
+// the latest).
+func (ix *acidIndex) lowerLevel(carbons, d int) int {
+	for l := d - 1; l > 0; l-- {
+		if ix.ladder(carbons, l) != nil {
+			return l
+		}
+	}
+	return 0
+}
+
+// removeOneBond returns the catalogue entry obtained by deleting one double
+// bond from an all-cis acid, trying the bond nearest the carboxyl group
+// first (EPA c5,8,11,14,17 → 20:4 c8,11,14,17), then the others in order of
+// position, or nil when no such entry exists.
+func (ix *acidIndex) removeOneBond(a *chem.FattyAcid) *chem.FattyAcid {
+	for skip := range a.Bonds {
+		var b strings.Builder
+		fmt.Fprintf(&b, "%d:%d ", a.Carbons, a.DoubleBondCount-1)
+		n := 0
+		for i, db := range a.Bonds {
+			if i == skip {
+				continue
+			}
+			if n > 0 {
+				b.WriteByte(',')
+			}
+			fmt.Fprintf(&b, "c%d", db.Position)
+			n++
+		}
+		if e, ok := ix.cat.ByID(b.String()); ok {
+			return e
+		}
+	}
+	return nil
+}
+
+// cisPartner returns the cis monoene a trans monoene relaxes to: the cis
+// isomer with the same bond position when the catalogue has it (elaidic →
+// oleic), otherwise the chain's common cis monoene (lumped "18:1 t" →
+// oleic).
+func (ix *acidIndex) cisPartner(a *chem.FattyAcid) *chem.FattyAcid {
+	if len(a.Bonds) == 1 {
+		id := fmt.Sprintf("%d:1 c%d", a.Carbons, a.Bonds[0].Position)
+		if e, ok := ix.cat.ByID(id); ok {
+			return e
+		}
+	}
+	return ix.ladder(a.Carbons, 1)
+}
+
+// transFraction is t/d: the share of an acid's double bonds that are trans.
+// A lumped trans entry is taken to carry one trans bond, which is what most
+// of the isomers formed in hardening carry [memory].
+func transFraction(a *chem.FattyAcid) float64 {
+	if a.DoubleBondCount == 0 {
+		return 0
+	}
+	if a.LumpedGeometry == chem.Trans {
+		return 1 / float64(a.DoubleBondCount)
+	}
+	t := 0
+	for _, b := range a.Bonds {
+		if b.Geometry == chem.Trans {
+			t++
+		}
+	}
+	return float64(t) / float64(a.DoubleBondCount)
+}
+
+// newNetwork builds the reaction scheme for the acids of a feed (and of an
+// sn-2 composition, if any): every unsaturated acid, every acid it can turn
+// into, and the saturated end of each chain. A hydroxy acid is rejected:
+// its hardened form (12-hydroxystearic acid from ricinoleic) is not in the
+// catalogue, so the product could not be expressed.
+func newNetwork(cat *chem.Catalogue, feed []*chem.FattyAcid) (*network, error) {
+	ix := newAcidIndex(cat)
+	net := &network{}
+	index := map[string]int{}
+	add := func(a *chem.FattyAcid) int {
+		if i, ok := index[a.ID]; ok {
+			return i
+		}
+		index[a.ID] = len(net.acids)
+		net.acids = append(net.acids, a)
+		return len(net.acids) - 1
+	}
+	for _, a := range feed {
+		if a.HydroxyPosition > 0 && a.DoubleBondCount > 0 {
+			return nil, chem.Errorf(chem.KindOutOfDomain,
+				"the feed holds %s, a hydroxy acid whose hardened form is not in the catalogue", a.ID).
+				WithField(fmt.Sprintf("hydroxy acid %s cannot be hardened by this model", a.ID), "feed", "acids")
+		}
+		add(a)
+	}
+	untracked := map[string]bool{}
+	connect := func(from int, to *chem.FattyAcid, rk rateKind, mult float64, sp split, tf float64) {
+		net.edges = append(net.edges, edge{from: from, to: add(to), rate: rk, mult: mult, split: sp, transFrac: tf})
+	}
+	// Walk the acids breadth first; products are appended as they appear.
+	for i := 0; i < len(net.acids); i++ {
+		a := net.acids[i]
+		c, d := a.Carbons, a.DoubleBondCount
+		if d == 0 {
+			continue
+		}
+		if d == 1 {
+			sat := ix.saturated(c)
+			if sat == nil {
+				return nil, chem.Errorf(chem.KindOutOfDomain, "the catalogue holds no saturated %d-carbon acid to harden %s to", c, a.ID).
+					WithField("no saturated product in the catalogue", "feed", "acids")
+			}
+			if a.HasTrans() {
+				connect(i, sat, rateTransMono, 1, splitWhole, 0)
+				if cis := ix.cisPartner(a); cis != nil {
+					connect(i, cis, rateTransToCis, 1, splitWhole, 0)
+				}
+				continue
+			}
+			connect(i, sat, rateCisMono, 1, splitWhole, 0)
+			if tr := ix.lumpedTrans(c, 1); tr != nil {
+				connect(i, tr, rateCisToTrans, 1, splitWhole, 0)
+			} else {
+				untracked[a.ID] = true
+			}
+			continue
+		}
+		rk, mult := rateDiene, 1.0
+		if d >= 3 {
+			// Polyenes: rate ∝ number of bis-allylic methylene groups
+			// (d − 1), anchored so that a C18 triene runs at exactly k1.
+			rk, mult = rateTriene, float64(d-1)/2
+		}
+		level := ix.lowerLevel(c, d)
+		var cis *chem.FattyAcid
+		if level == d-1 && a.AllCis() {
+			cis = ix.removeOneBond(a)
+		}
+		if cis == nil {
+			cis = ix.ladder(c, level)
+		}
+		if cis == nil {
+			return nil, chem.Errorf(chem.KindOutOfDomain, "the catalogue holds no product to harden %s to", a.ID).
+				WithField("no product in the catalogue", "feed", "acids")
+		}
+		tf := transFraction(a)
+		if tr := ix.lumpedTrans(c, level); tr != nil && level > 0 {
+			connect(i, cis, rk, mult, splitCis, tf)
+			connect(i, tr, rk, mult, splitTrans, tf)
+		} else {
+			connect(i, cis, rk, mult, splitWhole, tf)
+			if level > 0 {
+				untracked[a.ID] = true
+			}
+		}
+	}
+	for _, a := range net.acids {
+		if untracked[a.ID] {
+			net.untracked = append(net.untracked, a.ID)
+		}
+	}
+	net.d = make([]float64, len(net.acids))
+	net.mass = make([]float64, len(net.acids))
+	for i, a := range net.acids {
+		net.d[i] = float64(a.DoubleBondCount)
+		net.mass[i] = a.MolarMass()
+	}
+	net.buildBlocks()
+	return net, nil
+}
+
+// buildBlocks groups the acids that take part in a reaction by chain length.
+func (net *network) buildBlocks() {
+	inEdge := make([]bool, len(net.acids))
+	for _, e := range net.edges {
+		inEdge[e.from], inEdge[e.to] = true, true
+	}
+	byCarbons := map[int]*block{}
+	var order []int
+	for i, a := range net.acids {
+		if !inEdge[i] {
+			continue
+		}
+		b, ok := byCarbons[a.Carbons]
+		if !ok {
+			b = &block{}
+			byCarbons[a.Carbons] = b
+			order = append(order, a.Carbons)
+		}
+		b.idx = append(b.idx, i)
+	}
+	for _, c := range order {
+		b := byCarbons[c]
+		n := len(b.idx)
+		b.rates = mat.NewDense(n, n, nil)
+		b.scaled = mat.NewDense(n, n, nil)
+		b.exp = mat.NewDense(n, n, nil)
+		net.blocks = append(net.blocks, b)
+	}
+}
+
+// setCatalyst fills the rate matrices for catalyst c: for an edge i → j of
+// rate k, dx_j/dτ gains k·x_i and dx_i/dτ loses it. Every column sums to
+// zero, so the number of chains is conserved.
+func (net *network) setCatalyst(c Catalyst) {
+	local := make(map[int]int, len(net.acids))
+	owner := make(map[int]*block, len(net.acids))
+	for _, b := range net.blocks {
+		b.rates.Zero()
+		for k, i := range b.idx {
+			local[i] = k
+			owner[i] = b
+		}
+	}
+	for _, e := range net.edges {
+		k := e.value(c)
+		b := owner[e.from]
+		f, t := local[e.from], local[e.to]
+		b.rates.Set(t, f, b.rates.At(t, f)+k)
+		b.rates.Set(f, f, b.rates.At(f, f)-k)
+	}
+}
+
+// evolve writes into x the mole fractions at path variable tau, starting
+// from x0: x(τ) = exp(Aτ)·x0, block by block.
+//
+// Why the matrix exponential: the network is linear with constant
+// coefficients, so this is its exact solution. gonum's mat.Exp uses scaling
+// and squaring with a degree-13 Padé approximant (Higham, SIAM J. Matrix
+// Anal. Appl. 26:1179, 2005), which is backward stable for any matrix. An
+// eigen-decomposition would be cheaper to re-evaluate, but the network has
+// repeated and nearly repeated rates (every cis monoene decays at 1 + ι, a
+// diene rate S_R may meet the cis/trans pair's eigenvalues), where the
+// eigenvector matrix becomes singular or defective and the error grows
+// without bound. The blocks are small (one chain length, at most about a
+// dozen acids), so the exponential costs microseconds.
+//
+// exp(Aτ) of a rate matrix is non-negative in exact arithmetic; rounding can
+// leave values of order 1e-17 below zero, which are set to zero.
+func (net *network) evolve(x0 []float64, tau float64, x []float64) {
+	copy(x, x0)
+	if tau == 0 {
+		return
+	}
+	for _, b := range net.blocks {
+		b.scaled.Scale(tau, b.rates)
+		b.exp.Exp(b.scaled)
+		for r, i := range b.idx {
+			var s float64
+			for c, j := range b.idx {
+				s += b.exp.At(r, c) * x0[j]
+			}
+			x[i] = math.Max(s, 0)
+		}
+	}
+}
+
+// iodineValue is the exact iodine value of the triacylglycerol oil whose
+// chains have mole fractions x (any positive scale): 100·M(I2)·Σx·d /
+// (Σx·M_acid + (M_glycerol − 3 M_H2O)/3), the same formula as
+// chem.IodineValue with chem.MaterialTAG [DOMAIN §4, exact stoichiometric
+// iodine value].
+func (net *network) iodineValue(x []float64) float64 {
+	var sx, sd, sm float64
+	for i, v := range x {
+		sx += v
+		sd += v * net.d[i]
+		sm += v * net.mass[i]
+	}
+	return iodineValuePerMolPerGram * sd / (sm + sx*chem.GlycerolBackboneIncrement/3)
+}
+
+// iodineValueSlope returns the iodine value of x and its derivative along
+// the path, dIV/dτ = Σ_i (∂IV/∂x_i)·(A·x)_i, exact because dx/dτ = A·x.
+// With S_d = Σ x·d and S_m = Σ x·(M_acid + backbone/3),
+// ∂IV/∂x_i = 100·M(I2)·(d_i·S_m − S_d·(M_i + backbone/3))/S_m².
+func (net *network) iodineValueSlope(x []float64) (iv, slope float64) {
+	third := chem.GlycerolBackboneIncrement / 3
+	var sd, sm float64
+	for i, v := range x {
+		sd += v * net.d[i]
+		sm += v * (net.mass[i] + third)
+	}
+	for _, b := range net.blocks {
+		for r, i := range b.idx {
+			var dx float64
+			for c, j := range b.idx {
+				dx += b.rates.At(r, c) * x[j]
+			}
+			slope += dx * (net.d[i]*sm - sd*(net.mass[i]+third))
+		}
+	}
+	return iodineValuePerMolPerGram * sd / sm, iodineValuePerMolPerGram * slope / (sm * sm)
+}
+
+// bateman is the closed-form solution of the consecutive first-order chain
+// x[0] → x[1] → … → x[n−1] with rate constants k[0], …, k[n−2] (the last
+// member is the sink, k[n−1] = 0), after Bateman (Proc. Cambridge Philos.
+// Soc. 15:423, 1910):
+//
+//	x_n(τ) = Σ_{i≤n} x_i(0)·(Π_{j=i}^{n−1} k_j)·Σ_{j=i}^{n} e^{−k_j τ} / Π_{p=i..n, p≠j}(k_p − k_j).
+//
+// It needs pairwise distinct rates. For the trans-free C18 scheme
+// 18:3 → 18:2 → 18:1 → 18:0 the rates are k1 = S_Ln·S_R, k2 = S_R, k3 = 1,
+// 0 (Bailey 1949; Albright 1965). The package uses it to check the general
+// solver.
+func bateman(x0, k []float64, tau float64) []float64 {
+	n := len(x0)
+	rates := make([]float64, n)
+	copy(rates, k)
+	rates[n-1] = 0
+	out := make([]float64, n)
+	for m := 0; m < n; m++ {
+		for i := 0; i <= m; i++ {
+			if x0[i] == 0 {
+				continue
+			}
+			prod := 1.0
+			for j := i; j < m; j++ {
+				prod *= rates[j]
+			}
+			var sum float64
+			for j := i; j <= m; j++ {
+				den := 1.0
+				for p := i; p <= m; p++ {
+					if p != j {
+						den *= rates[p] - rates[j]
+					}
+				}
+				sum += math.Exp(-rates[j]*tau) / den
+			}
+			out[m] += x0[i] * prod * sum
+		}
+	}
+	return out
+}
