@@ -32,4 +32,7 @@ func Routes(e *echo.Echo, d Deps) {
 	e.GET("/v1/fatty-acids", handleFattyAcids(d.Catalogue))
 	e.POST("/v1/properties", handleProperties(d.Catalogue, d.Recorder))
 	e.POST("/v1/hydrogen-demand", handleHydrogenDemand(d.Catalogue, d.Recorder))
+	e.POST("/v1/hardening/forecast", handleForecast(d.Catalogue, d.Recorder))
+	e.GET("/v1/hardening/presets", handlePresets())
+	e.POST("/v1/hardening/fit", handleFit(d.Catalogue, d.Recorder))
 }
