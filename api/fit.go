@@ -2,6 +2,7 @@ package api
 
 import (
 	"fmt"
+	"math"
 	"net/http"
 
 	"github.com/labstack/echo/v4"
@@ -55,10 +56,18 @@ type FitResponse struct {
 	Parameters          []FitParameter         `json:"parameters"`
 	Observations        []FitObservationResult `json:"observations"`
 	RMSPercentagePoints float64                `json:"rms_percentage_points"`
-	RSquared            float64                `json:"r_squared"`
+	RSquared            *float64               `json:"r_squared"`
 	Iterations          int                    `json:"iterations"`
 	Evaluations         int                    `json:"evaluations"`
 	Warnings            []WarningBody          `json:"warnings"`
+}
+
+// finiteOrNil turns an undefined (NaN or infinite) figure into null.
+func finiteOrNil(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
 }
 
 var fitRenames = map[string]string{"free": "free_parameters"}
@@ -121,7 +130,7 @@ func fromFit(r *hardening.FitResult, warnings []WarningBody) FitResponse {
 	out := FitResponse{
 		Catalyst:            fromCatalyst(r.Catalyst),
 		RMSPercentagePoints: r.RMSPercentagePoints,
-		RSquared:            r.RSquared,
+		RSquared:            finiteOrNil(r.RSquared),
 		Iterations:          r.Iterations,
 		Evaluations:         r.Evaluations,
 		Warnings:            warnings,

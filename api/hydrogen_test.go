@@ -118,6 +118,7 @@ func TestHydrogenBadRequests(t *testing.T) {
 		{"nothing to harden", `{"feed":{"profile":{"acids":[{"acid":"18:0","percent":100}]}},"target":{"iodine_value":0},"batch_mass_kg":1}`, 422, ""},
 		{"bad profile label", `{"feed":{"profile":{"acids":[{"acid":"18:7","percent":100}]}},"target":{"iodine_value":0},"batch_mass_kg":1}`, 422, "/feed/profile/acids/0/acid"},
 		{"negative target", `{"feed":{"iodine_value":70},"target":{"iodine_value":-1},"batch_mass_kg":1}`, 400, "/target/iodine_value"},
+		{"heat capacity near zero", `{"feed":{"iodine_value":133},"target":{"iodine_value":0},"batch_mass_kg":1,"heat":{"heat_capacity_intercept_kj_per_kg_k":0.000001,"heat_capacity_slope_kj_per_kg_k2":0}}`, 422, "/heat"},
 		{"heat capacity collapses", `{"feed":{"iodine_value":133},"target":{"iodine_value":0},"batch_mass_kg":1,"heat":{"heat_capacity_intercept_kj_per_kg_k":-1,"heat_capacity_slope_kj_per_kg_k2":0}}`, 422, "/heat"},
 	}
 	for _, tc := range cases {

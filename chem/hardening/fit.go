@@ -30,6 +30,10 @@ const (
 	// jacobianStep is the central-difference step in the transformed
 	// parameters (which are of order one).
 	jacobianStep = 1e-5
+	// boundShare is how close, as a share of its search range (in the
+	// transformed coordinate), a fitted parameter may come to a bound before
+	// it is reported as not determined by the data.
+	boundShare = 1e-4
 	// minIsomerisationRateFit is the lower bound of the isomerisation rate
 	// during a fit: the logarithmic transform cannot reach 0 itself.
 	minIsomerisationRateFit = 1e-3
@@ -165,7 +169,8 @@ type FitResult struct {
 	RMSPercentagePoints float64
 	// RSquared is 1 − Σ residual² / Σ (observed − mean observed)² over all
 	// groups of all observations: the share of the spread of the observed
-	// percentages the model explains.
+	// percentages the model explains. It is NaN when the observed
+	// percentages have no spread at all.
 	RSquared float64
 	// Iterations is the number of Gauss–Newton iterations.
 	Iterations int
@@ -234,7 +239,10 @@ func (t paramTransform) fromTheta(theta float64) float64 {
 	u := 1 / (1 + math.Exp(-theta))
 	g := t.lo + u*(t.hi-t.lo)
 	if t.log {
-		return math.Exp(g)
+		// exp(log(bound)) can land a rounding step outside the bound; clamp so
+		// that a fitted catalyst always passes Catalyst.Validate.
+		lo, hi := t.p.Range()
+		return math.Min(math.Max(math.Exp(g), lo), hi)
 	}
 	return g
 }
@@ -656,7 +664,10 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 		}
 	}
 	out.RMSPercentagePoints = math.Sqrt(ss / n)
-	out.RSquared = 1 - ss/tot
+	out.RSquared = math.NaN()
+	if tot > 0 {
+		out.RSquared = 1 - ss/tot
+	}
 
 	se := f.standardErrors(theta, ss)
 	freeIndex := map[Parameter]int{}
@@ -667,7 +678,16 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 		est := ParameterEstimate{Parameter: p, Value: c.Value(p)}
 		if i, ok := freeIndex[p]; ok {
 			est.Free = true
-			if se != nil && isFinite(se[i]) {
+			// θ is the logit of the position within the search range, so a
+			// large |θ| means the parameter sits on a bound.
+			if u := 1 / (1 + math.Exp(-theta[i])); u < boundShare || u > 1-boundShare {
+				// A parameter pinned at its bound is not determined by the
+				// data; its linearised standard error would mislead.
+				out.Warnings = append(out.Warnings, chem.Warning{Code: chem.WarnMethodScope,
+					Message: fmt.Sprintf("%s ended at the bound of its range (%g); the data do not determine it — "+
+						"add observations along the path or hold it", p, est.Value),
+					Path: []any{"free"}})
+			} else if se != nil && isFinite(se[i]) {
 				v := se[i]
 				if f.free[i].log {
 					v *= est.Value // SE(p) ≈ p·SE(ln p)

@@ -51,6 +51,9 @@ const (
 	// ivTolerance is the accuracy to which a target iodine value is hit,
 	// g I2/100 g (the requirement is 0.01).
 	ivTolerance = 1e-9
+	// ivAcceptTolerance is the accuracy accepted when floating-point
+	// resolution in τ stops the search before ivTolerance.
+	ivAcceptTolerance = 1e-6
 	// sn2Slack is the rounding allowed when checking b_i ≤ 3x_i, in mole
 	// fraction.
 	sn2Slack = 1e-6
@@ -260,7 +263,14 @@ func (tr *trajectory) solve(ctx context.Context, target, lo, hi, start float64) 
 			}
 		}
 		if next == t {
-			break // the bracket has shrunk to adjacent numbers
+			// The bracket has shrunk to adjacent numbers: near steep corners
+			// of the parameter space the iodine value can step by more than
+			// ivTolerance between neighbouring τ. Accept the point when it is
+			// still far inside the 0.01 the target promises.
+			if math.Abs(f) <= ivAcceptTolerance {
+				return t, nil
+			}
+			break
 		}
 		t = next
 	}

@@ -82,6 +82,12 @@ const (
 	DefaultGasReferenceKind = GasRef0C1atm
 )
 
+// MinHeatCapacityJPerGK is the smallest heat capacity, J/(g·K), the heat
+// model accepts at the start temperature. Liquid oils lie near 2; a model
+// giving less than a quarter of that is a mistake in the inputs, and near
+// zero it would turn any heat into an absurd temperature.
+const MinHeatCapacityJPerGK = 0.5
+
 // The trade's rule of thumb of 1.6–1.7 °C of temperature rise per iodine-value
 // unit (common practice, no source) corresponds, with the default enthalpy, to
 // cp ≈ 2.7 kJ/(kg·K), or with cp ≈ 2.5 to |ΔH| ≈ 105 kJ/mol. It is not used by
@@ -760,8 +766,9 @@ func (req HydrogenRequest) validate() (float64, error) {
 	startK := req.StartTemperatureC + zeroCelsiusK
 	if !isFinite(req.StartTemperatureC) || !(startK > 0) {
 		errs.invalid("must be a finite temperature above absolute zero (−273.15 °C)", "start_temperature_c")
-	} else if cpOK && !(cp.At(startK) > 0) {
-		errs.outOfDomain("heat capacity must be positive at the start temperature", "heat", "heat_capacity")
+	} else if cpOK && !(cp.At(startK) >= MinHeatCapacityJPerGK) {
+		errs.outOfDomain(fmt.Sprintf("heat capacity must be at least %g kJ/(kg·K) at the start temperature", MinHeatCapacityJPerGK),
+			"heat", "heat_capacity")
 	}
 
 	if err := errs.err("hydrogen demand request"); err != nil {
