@@ -25,6 +25,9 @@ func decodeStrict(c echo.Context, v any) error {
 		}
 		return NewError(KindMalformed, "the request body could not be read")
 	}
+	if err := checkDuplicateKeys(body); err != nil {
+		return err
+	}
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
@@ -73,4 +76,49 @@ func respond(c echo.Context, status int, v any) error {
 		return fmt.Errorf("encoding response: %w", err)
 	}
 	return c.JSONBlob(status, body)
+}
+
+// checkDuplicateKeys rejects an object that names the same member twice:
+// encoding/json would keep the last silently, and a value silently dropped
+// is a wrong certificate. Malformed JSON is left to the decoder's message.
+func checkDuplicateKeys(body []byte) error {
+	dec := json.NewDecoder(bytes.NewReader(body))
+	dec.UseNumber()
+	var walk func(path []any) error
+	walk = func(path []any) error {
+		tok, err := dec.Token()
+		if err != nil {
+			return nil
+		}
+		switch tok {
+		case json.Delim('{'):
+			seen := map[string]bool{}
+			for dec.More() {
+				kt, err := dec.Token()
+				if err != nil {
+					return nil
+				}
+				key, _ := kt.(string)
+				p := append(append([]any{}, path...), key)
+				if seen[key] {
+					return NewError(KindMalformed, "the request names a field twice",
+						FieldError{Pointer: Pointer(p...), Reason: "duplicate member " + key})
+				}
+				seen[key] = true
+				if err := walk(p); err != nil {
+					return err
+				}
+			}
+			_, _ = dec.Token()
+		case json.Delim('['):
+			for i := 0; dec.More(); i++ {
+				if err := walk(append(append([]any{}, path...), i)); err != nil {
+					return err
+				}
+			}
+			_, _ = dec.Token()
+		}
+		return nil
+	}
+	return walk(nil)
 }

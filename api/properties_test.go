@@ -134,6 +134,7 @@ func TestBadRequests(t *testing.T) {
 		{"JSON array", call{body: `[1,2]`}, 400, ""},
 		{"JSON null", call{body: `null`}, 400, "-"},
 		{"empty body", call{body: ` `}, 400, ""},
+		{"duplicate key", call{body: prof(`{"acid":"16:0","percent":50,"percent":100}`)}, 400, "/profile/acids/0/percent"},
 		{"unknown top-level field", call{body: `{"profile":{"acids":[` + ok + `]},"colour":"red"}`}, 400, "/colour"},
 		{"unknown entry field", call{body: prof(`{"acid":"16:0","percent":100,"note":"x"}`)}, 400, "/profile/acids/0/note"},
 		{"percent as string", call{body: prof(`{"acid":"16:0","percent":"ten"}`)}, 400, "/profile/acids/0/percent"},
