@@ -13,7 +13,9 @@ func twentyAcids(b *testing.B) []acidPct {
 
 // BenchmarkMeltTwentyAcidRandom measures one full default curve (0–60 °C
 // plus the reporting points, slip and clear points, main species) for a
-// 20-acid full random distribution, pooled at the default floor.
+// 20-acid full random distribution, with the default model and pooling
+// (SolidSolutionFamilies, pooled within families at
+// DefaultFamiliesPoolFloorMoleFraction). Target: under 1 ms.
 func BenchmarkMeltTwentyAcidRandom(b *testing.B) {
 	p := profileOf(b, twentyAcids(b)...)
 	opt := Options{Composition: CompositionOptions{Distribution: FullRandom}}
@@ -49,6 +51,19 @@ func BenchmarkSlipMeltingPointPalm(b *testing.B) {
 func BenchmarkMeltTwentyAcidIdealSolidSolution(b *testing.B) {
 	p := profileOf(b, twentyAcids(b)...)
 	opt := Options{SolidModel: IdealSolidSolution, Composition: CompositionOptions{Distribution: FullRandom}}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Melt(p, opt); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkMeltTwentyAcidPureSolids is the same curve with the eutectic
+// model (the previous default) at its pooling floor.
+func BenchmarkMeltTwentyAcidPureSolids(b *testing.B) {
+	p := profileOf(b, twentyAcids(b)...)
+	opt := Options{SolidModel: MultiplePureSolids, Composition: CompositionOptions{Distribution: FullRandom}}
 	b.ReportAllocs()
 	for b.Loop() {
 		if _, err := Melt(p, opt); err != nil {

@@ -223,7 +223,7 @@ func (c *calibrator) slip(s, thr float64) (float64, bool, error) {
 	g := *c.f
 	g.opt.Calibration = Calibration{TemperatureShiftK: s, SlipThresholdPercent: thr}
 	g.mixture = c.f.mixture.shifted(s)
-	return g.slipPoint(g.mixture.newWorkspace(), nil)
+	return g.slipPoint(g.mixture.newWorkspace(), nil, math.NaN())
 }
 
 func (c *calibrator) fitShiftToSlip(thr float64) (float64, error) {
@@ -297,8 +297,11 @@ func (m *Mixture) shifted(s float64) *Mixture {
 		return m
 	}
 	out := &Mixture{}
-	for i := range m.z {
-		out.add(m.z[i], m.mass[i], m.tm[i]+s, m.a[i]*chem.GasConstant/1000)
+	for f := 0; f+1 < len(m.famOff); f++ {
+		for i := m.famOff[f]; i < m.famOff[f+1]; i++ {
+			out.add(m.z[i], m.mass[i], m.tm[i]+s, m.a[i]*chem.GasConstant/1000, i == m.famOff[f])
+		}
 	}
+	out.endFamilies()
 	return out
 }

@@ -102,6 +102,16 @@ const PalmSN2Selectivity = 0.14
 // (TestPoolingChangesLittle), and it keeps a 20-acid curve fast.
 const DefaultPoolFloorMoleFraction = 1e-4
 
+// DefaultFamiliesPoolFloorMoleFraction is the pooling floor the
+// SolidSolutionFamilies model uses when none is given. There species are
+// pooled only within their own family, where species of nearly the same
+// melting point enter the same ideal solid solution and behave almost as
+// one: pooling 70 % of the mass of a 20-acid random fat this way moves its
+// SFC by under 0.01 points and its slip and clear points by under 0.03 K
+// against no pooling (TestPoolingChangesLittle checks the validation fats),
+// while the solver works on a few hundred components instead of thousands.
+const DefaultFamiliesPoolFloorMoleFraction = 0.01
+
 // poolBinK is the width of the melting-point bins pooled species share.
 const poolBinK = 2.0
 
@@ -124,9 +134,11 @@ type CompositionOptions struct {
 	// "sn2_enrichment_factors".
 	EnrichmentFactors []float64
 	// PoolFloorMoleFraction: species with a smaller mole fraction are pooled
-	// into pseudo-components that share a 2 K melting-point bin (mole
-	// fractions summed, mass kept exactly, melting point and enthalpy
-	// mole-averaged). Zero means DefaultPoolFloorMoleFraction. Field
+	// into pseudo-components that share a 2 K melting-point bin and a
+	// solid-solution family (mole fractions summed, mass kept exactly,
+	// melting point and enthalpy mole-averaged). Zero means
+	// DefaultFamiliesPoolFloorMoleFraction for the SolidSolutionFamilies
+	// model and DefaultPoolFloorMoleFraction otherwise. Field
 	// "pool_floor_mole_fraction".
 	PoolFloorMoleFraction float64
 	// NoPooling keeps every species (slower for profiles with many acids).
@@ -225,6 +237,16 @@ const (
 // TAGComposition builds the TAG species of a profile. Errors are
 // KindInvalid *chem.Error values with paths under "composition".
 func TAGComposition(p *chem.Profile, opt CompositionOptions) (*Composition, error) {
+	c, err := positionPools(p, opt)
+	if err != nil {
+		return nil, err
+	}
+	c.Species = c.materialize(enumerate(c.Acids, c.SN13, c.SN2))
+	return c, nil
+}
+
+// positionPools fills everything of a Composition except Species.
+func positionPools(p *chem.Profile, opt CompositionOptions) (*Composition, error) {
 	if p == nil || len(p.Components) == 0 {
 		return nil, chem.Errorf(chem.KindInvalid, "a fatty-acid profile is required").WithField("no acids", "acids")
 	}
@@ -262,19 +284,39 @@ func TAGComposition(p *chem.Profile, opt CompositionOptions) (*Composition, erro
 		return nil, chem.Errorf(chem.KindInvalid, "unknown distribution").
 			WithField("must be sn13_random_sn2_random or full_random", "composition", "distribution")
 	}
-	c.Species = enumerate(c.Acids, c.SN13, c.SN2)
 	return c, nil
+}
+
+// tagSpecies is the compact, pointer-free form of a Species the solvers
+// work with (cheap to allocate for thousands of species).
+type tagSpecies struct {
+	z, mass float64  // mole fraction, g/mol
+	idx     [3]int32 // acid indices: outer, middle, outer
+}
+
+// materialize turns compact species into Species.
+func (c *Composition) materialize(sp []tagSpecies) []Species {
+	out := make([]Species, len(sp))
+	for i, s := range sp {
+		out[i] = c.species(s)
+	}
+	return out
+}
+
+func (c *Composition) species(s tagSpecies) Species {
+	return Species{Outer1: c.Acids[s.idx[0]], Middle: c.Acids[s.idx[1]], Outer2: c.Acids[s.idx[2]],
+		MoleFraction: s.z, MolarMass: s.mass, idx: s.idx}
 }
 
 // enumerate lists the lumped species: for outer acids i ≤ k and middle j,
 // P = a_i·b_j·a_k, doubled when i ≠ k because sn-1/sn-3 are equivalent.
-func enumerate(acids []*chem.FattyAcid, a, b []float64) []Species {
+func enumerate(acids []*chem.FattyAcid, a, b []float64) []tagSpecies {
 	n := len(acids)
 	mass := make([]float64, n)
 	for i, ac := range acids {
 		mass[i] = ac.MolarMass()
 	}
-	out := make([]Species, 0, n*n*(n+1)/2)
+	out := make([]tagSpecies, 0, n*n*(n+1)/2)
 	for i := 0; i < n; i++ {
 		if a[i] == 0 {
 			continue
@@ -291,11 +333,10 @@ func enumerate(acids []*chem.FattyAcid, a, b []float64) []Species {
 				if b[j] == 0 {
 					continue
 				}
-				out = append(out, Species{
-					Outer1: acids[i], Middle: acids[j], Outer2: acids[k],
-					MoleFraction: outer * b[j],
-					MolarMass:    chem.GlycerolBackboneIncrement + mass[i] + mass[j] + mass[k],
-					idx:          [3]int32{int32(i), int32(j), int32(k)},
+				out = append(out, tagSpecies{
+					z:    outer * b[j],
+					mass: chem.GlycerolBackboneIncrement + mass[i] + mass[j] + mass[k],
+					idx:  [3]int32{int32(i), int32(j), int32(k)},
 				})
 			}
 		}

@@ -22,10 +22,16 @@
 //     The coefficients are our own fit to testdata/melting/pure_tag_thermo.csv
 //     (see fit_test.go and testdata/melting/fit_coefficients.json); measured
 //     values override the correlation for the TAGs that have them.
-//  3. Solid–liquid equilibrium (sle.go): ideal solubility of each solid
-//     (Hildebrand / Schröder–van Laar) with either multiple pure solid phases
-//     (a eutectic system, solved exactly) or one ideal solid solution per
-//     polymorph (Rachford–Rice).
+//  3. Solid–liquid equilibrium (sle.go, families.go): an ideal liquid and
+//     ideal solubility of each solid (Hildebrand / Schröder–van Laar), with
+//     one of three solid models: multiple pure solid phases (a eutectic
+//     system, solved exactly), one ideal solid solution (Rachford–Rice), or
+//     — the default — partial miscibility: species grouped into families of
+//     near-isomorphous TAGs (same unsaturation, total acyl carbons in one
+//     6-carbon band), each family an ideal solid solution, the families
+//     mutually immiscible (Michelsen's convex formulation of multiphase
+//     ideal-solution equilibrium, solved by a joint Newton method with a
+//     bracketed nested iteration as fallback).
 //  4. Melting results ([Melt], melt.go): the SFC curve, the slip melting
 //     point found by root finding on the monotone SFC(T), the clear point,
 //     SFC at 37 °C, the main species, and warnings. [SlipMeltingPoint] is the
@@ -38,8 +44,9 @@
 //
 // Defaults, and the validation that chose them, are on [DefaultOptions] and
 // in testdata/melting/VALIDATION.md. The results are estimates: real fats
-// crystallise out of equilibrium, form mixed crystals and compounds, and
-// their measured SFC depends on the tempering procedure.
+// crystallise out of equilibrium, their mixed crystals are not ideal, some
+// TAG pairs form compounds, and their measured SFC depends on the tempering
+// procedure.
 //
 // The package is pure: value types and deterministic functions that import
 // only the standard library, gonum and lipidsvc/chem. Errors are *chem.Error

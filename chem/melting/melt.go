@@ -4,19 +4,18 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"sort"
 	"strings"
+	"sync"
 
 	"lipidsvc/chem"
 )
 
 // DefaultSlipThresholdPercent is the solid fat content (mass %) at which the
 // slip melting point is read. The trade places the slip melting point where
-// the SFC falls to about 3–5 % [practice, DOMAIN §10]. With the default
-// model and polymorph the slip points of the validation fats come out low,
-// and 3 % — the low end of that range — gave the smallest error
-// (testdata/melting/VALIDATION.md lists 3, 4 and 5 % for every model and
-// polymorph). Calibrate a fat to fit its own threshold.
+// the SFC falls to about 3–5 % [practice, DOMAIN §10]; with the default model
+// and polymorph 3 %, the low end of that range, gave the smallest mean error
+// on the validation fats (testdata/melting/VALIDATION.md lists 3, 4 and 5 %
+// for every model and polymorph). Calibrate a fat to fit its own threshold.
 const DefaultSlipThresholdPercent = 3.0
 
 // DefaultMainSpecies is how many TAG species a result lists by default.
@@ -114,6 +113,9 @@ func (o Options) withDefaults() Options {
 	if o.SolidModel == 0 {
 		o.SolidModel = DefaultSolidModel
 	}
+	if o.Composition.PoolFloorMoleFraction == 0 && o.SolidModel == SolidSolutionFamilies {
+		o.Composition.PoolFloorMoleFraction = DefaultFamiliesPoolFloorMoleFraction
+	}
 	o.Composition = o.Composition.withDefaults()
 	if o.SlipThresholdPercent == 0 {
 		o.SlipThresholdPercent = DefaultSlipThresholdPercent
@@ -133,8 +135,8 @@ func (o Options) validate() error {
 	if !o.Polymorph.valid() {
 		bad.WithField("must be alpha, beta_prime or beta", "polymorph")
 	}
-	if o.SolidModel != MultiplePureSolids && o.SolidModel != IdealSolidSolution {
-		bad.WithField("must be multiple_pure_solids or ideal_solid_solution", "solid_model")
+	if o.SolidModel < MultiplePureSolids || o.SolidModel > SolidSolutionFamilies {
+		bad.WithField("must be multiple_pure_solids, ideal_solid_solution or solid_solution_families", "solid_model")
 	}
 	if o.Composition.Distribution != Positional && o.Composition.Distribution != FullRandom {
 		bad.WithField("must be sn13_random_sn2_random or full_random", "composition", "distribution")
@@ -190,13 +192,12 @@ func (o Options) slipThreshold() float64 {
 // Build it with [Prepare]; it is immutable and safe for concurrent use.
 type Fat struct {
 	opt         Options
-	composition *Composition
+	composition *Composition // without Species; see Composition
+	full        *lazyComposition
 	mixture     *Mixture
-	// per-species melting points (K) and override flags, aligned with
-	// composition.Species.
-	tm       []float64
-	measured []bool
 	// reporting
+	main              []mainEntry // the largest species by mass, largest first
+	speciesCount      int
 	totalMass         float64
 	pooledSpecies     int
 	pooledMassPercent float64
@@ -213,11 +214,11 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	if err := opt.validate(); err != nil {
 		return nil, err
 	}
-	comp, err := TAGComposition(p, opt.Composition)
+	comp, err := positionPools(p, opt.Composition)
 	if err != nil {
 		return nil, err
 	}
-	f := &Fat{opt: opt, composition: comp}
+	f := &Fat{opt: opt, composition: comp, full: &lazyComposition{}}
 	f.warnings = append(f.warnings, comp.Warnings...)
 
 	// Per-acid parts of the correlation: ΔH and ΔS are sums over chains
@@ -253,54 +254,8 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	}
 	overrides := resolveOverrides(comp.Acids, opt.Polymorph)
 
-	species := comp.Species
-	f.tm = make([]float64, len(species))
-	f.measured = make([]bool, len(species))
-	dh := make([]float64, len(species))
-	var outsideMass float64
-	shift := opt.Calibration.TemperatureShiftK
-	for si := range species {
-		sp := &species[si]
-		i, j, l := sp.idx[0], sp.idx[1], sp.idx[2]
-		short, long := chains[i].carbons, chains[l].carbons
-		if short > long {
-			short, long = long, short
-		}
-		x := chains[j].carbons - short
-		if x < 0 {
-			x = -x
-		}
-		fxy := gm[x] + gm[long-short]
-		h := k.EnthalpyInterceptKJ + hc[i] + hc[j] + hc[l] + k.MismatchKJ*fxy
-		s := k.EntropyInterceptJ + sc[i] + sc[j] + sc[l] + 1000*k.MismatchKJ*fxy/coef.CompensationTemperatureK
-		var tm float64
-		if h < floorEnthalpyKJ || s <= 0 {
-			tm, h = floorMeltingPointK, floorEnthalpyKJ
-		} else if tm = 1000 * h / s; tm < floorMeltingPointK {
-			tm = floorMeltingPointK
-		}
-		if len(overrides) > 0 {
-			if m, ok := overrides[sp.idx]; ok {
-				if !math.IsNaN(m.meltingPointK) {
-					tm = m.meltingPointK
-				}
-				if !math.IsNaN(m.enthalpyKJ) {
-					h = m.enthalpyKJ
-				}
-				f.measured[si] = true
-				f.overrides++
-			}
-		}
-		f.tm[si] = tm
-		dh[si] = h
-		mass := sp.MoleFraction * sp.MolarMass
-		f.totalMass += mass
-		if !chains[i].inFit || !chains[j].inFit || !chains[l].inFit {
-			outsideMass += mass
-		}
-	}
-
-	f.mixture = f.buildMixture(dh, shift)
+	outsideMass := f.build(prepared{chains: chains, hc: hc, sc: sc, gm: gm, k: k,
+		thetaK: coef.CompensationTemperatureK, overrides: overrides})
 	if len(outside) > 0 {
 		f.warnings = append(f.warnings, chem.Warning{Code: WarnOutsideFit, Message: fmt.Sprintf(
 			"%s %s outside the pure-TAG data the property correlation was fitted to; the species containing "+
@@ -311,7 +266,7 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 		f.warnings = append(f.warnings, chem.Warning{Code: WarnPooled, Message: fmt.Sprintf(
 			"%d species below a mole fraction of %.3g (%.3g %% of the mass) were pooled into %d components "+
 				"by melting point (%g K bins)", f.pooledSpecies, opt.Composition.PoolFloorMoleFraction,
-			f.pooledMassPercent, f.mixture.Len()-(len(species)-f.pooledSpecies), poolBinK),
+			f.pooledMassPercent, f.mixture.Len()-(f.speciesCount-f.pooledSpecies), poolBinK),
 			Path: []any{"composition", "pool_floor_mole_fraction"}})
 	}
 	return f, nil
@@ -324,19 +279,22 @@ func plural(n int, one, many string) string {
 	return many
 }
 
-// resolveOverrides maps the measured values for polymorph p onto species
-// index triples of the given acids.
-func resolveOverrides(acids []*chem.FattyAcid, p Polymorph) map[[3]int32]measuredOverride {
-	var out map[[3]int32]measuredOverride
-	idx := func(id string) (int32, bool) {
+// resolveOverrides maps the measured values for polymorph p onto a dense
+// table over species acid-index triples (outer, middle, outer; both outer
+// orders): entry k > 0 means measuredOverrides[k−1]. It returns nil when no
+// override applies to these acids.
+func resolveOverrides(acids []*chem.FattyAcid, p Polymorph) []int16 {
+	var out []int16
+	n := len(acids)
+	idx := func(id string) (int, bool) {
 		for i, a := range acids {
 			if a.ID == id {
-				return int32(i), true
+				return i, true
 			}
 		}
 		return 0, false
 	}
-	for _, m := range measuredOverrides {
+	for k, m := range measuredOverrides {
 		if m.polymorph != p {
 			continue
 		}
@@ -346,66 +304,31 @@ func resolveOverrides(acids []*chem.FattyAcid, p Polymorph) map[[3]int32]measure
 		if !ok1 || !ok2 || !ok3 {
 			continue
 		}
-		if o1 > o2 {
-			o1, o2 = o2, o1
-		}
 		if out == nil {
-			out = map[[3]int32]measuredOverride{}
+			out = make([]int16, n*n*n)
 		}
-		out[[3]int32{o1, mid, o2}] = m
+		out[(o1*n+mid)*n+o2] = int16(k + 1)
+		out[(o2*n+mid)*n+o1] = int16(k + 1)
 	}
 	return out
 }
 
-// buildMixture keeps the species at or above the pooling floor and pools
-// the rest into 2 K melting-point bins.
-func (f *Fat) buildMixture(dh []float64, shift float64) *Mixture {
-	species := f.composition.Species
-	floor := f.opt.Composition.PoolFloorMoleFraction
-	if f.opt.Composition.NoPooling {
-		floor = 0
-	}
-	n := 0
-	for si := range species {
-		if species[si].MoleFraction >= floor {
-			n++
-		}
-	}
-	n += 256 // room for the pooled bins
-	m := &Mixture{z: make([]float64, 0, n), mass: make([]float64, 0, n), a: make([]float64, 0, n),
-		c: make([]float64, 0, n), tm: make([]float64, 0, n)}
-	type bin struct{ z, zm, ztm, zdh float64 }
-	var bins []bin
-	var pooledMass float64
-	for si := range species {
-		sp := &species[si]
-		if sp.MoleFraction >= floor {
-			m.add(sp.MoleFraction, sp.MolarMass, f.tm[si]+shift, dh[si])
-			continue
-		}
-		b := int(f.tm[si] / poolBinK)
-		if b >= len(bins) {
-			bins = append(bins, make([]bin, b+1-len(bins))...)
-		}
-		bb := &bins[b]
-		bb.z += sp.MoleFraction
-		bb.zm += sp.MoleFraction * sp.MolarMass
-		bb.ztm += sp.MoleFraction * f.tm[si]
-		bb.zdh += sp.MoleFraction * dh[si]
-		pooledMass += sp.MoleFraction * sp.MolarMass
-		f.pooledSpecies++
-	}
-	for _, b := range bins {
-		if b.z > 0 {
-			m.add(b.z, b.zm/b.z, b.ztm/b.z+shift, b.zdh/b.z)
-		}
-	}
-	f.pooledMassPercent = 100 * pooledMass / f.totalMass
-	return m
+// Composition returns the TAG composition the fat was built from.
+func (f *Fat) Composition() *Composition {
+	f.full.once.Do(func() {
+		c := *f.composition
+		c.Species = c.materialize(enumerate(c.Acids, c.SN13, c.SN2))
+		f.full.c = &c
+	})
+	return f.full.c
 }
 
-// Composition returns the TAG composition the fat was built from.
-func (f *Fat) Composition() *Composition { return f.composition }
+// lazyComposition builds the full Composition of a Fat on first request
+// (Prepare itself works on the compact species).
+type lazyComposition struct {
+	once sync.Once
+	c    *Composition
+}
 
 // Mixture returns the components handed to the equilibrium solvers.
 func (f *Fat) Mixture() *Mixture { return f.mixture }
@@ -438,7 +361,7 @@ func (f *Fat) ClearPointC() (float64, error) {
 // root finder working along a hardening path.
 func (f *Fat) SlipMeltingPointC() (tC float64, defined bool, err error) {
 	w := f.mixture.newWorkspace()
-	t, ok, err := f.slipPoint(w, nil)
+	t, ok, err := f.slipPoint(w, nil, math.NaN())
 	return t - zeroCelsiusK, ok, err
 }
 
@@ -447,14 +370,16 @@ type curvePoint struct{ tK, sfc float64 }
 
 // slipPoint finds the slip temperature (K). known are SFC values already
 // computed (ascending in T), used to bracket the root without new
-// evaluations.
-func (f *Fat) slipPoint(w *workspace, known []curvePoint) (float64, bool, error) {
+// evaluations; clear is the clear point (K) if already known, else NaN.
+func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float64, bool, error) {
 	thr := f.opt.slipThreshold()
 	model, maxIter := f.opt.SolidModel, f.opt.MaxIterations
 	eval := func(tK float64) (float64, error) { return f.mixture.sfc(model, tK, 0, maxIter, w) }
-	clear, err := f.mixture.clearPointK(model, 0, maxIter)
-	if err != nil {
-		return 0, false, err
+	if math.IsNaN(clear) {
+		var err error
+		if clear, err = f.mixture.clearPointK(model, 0, maxIter); err != nil {
+			return 0, false, err
+		}
 	}
 	lowK := MinTemperatureC + zeroCelsiusK
 	// Bracket [lo, hi] with SFC(lo) ≥ thr > SFC(hi).
@@ -612,19 +537,27 @@ func (f *Fat) Melt() (*Result, error) {
 	slices.Sort(all)
 	all = slices.Compact(all)
 
+	// The clear point first: at and above it the SFC is zero and needs no
+	// equilibrium solution.
+	clear, err := f.mixture.clearPointK(opt.SolidModel, 0, opt.MaxIterations)
+	if err != nil {
+		return nil, err
+	}
 	w := f.mixture.newWorkspace()
 	known := make([]curvePoint, len(all))
 	sfcAt := make(map[float64]float64, len(all))
 	for i, t := range all {
-		v, err := f.mixture.sfc(opt.SolidModel, t+zeroCelsiusK, 0, opt.MaxIterations, w)
-		if err != nil {
-			return nil, err
+		var v float64
+		if tK := t + zeroCelsiusK; tK < clear {
+			if v, err = f.mixture.sfc(opt.SolidModel, tK, 0, opt.MaxIterations, w); err != nil {
+				return nil, err
+			}
 		}
 		known[i] = curvePoint{t + zeroCelsiusK, v}
 		sfcAt[t] = v
 	}
 	r := &Result{
-		SpeciesCount:      len(f.composition.Species),
+		SpeciesCount:      f.speciesCount,
 		ComponentCount:    f.mixture.Len(),
 		PooledSpecies:     f.pooledSpecies,
 		PooledMassPercent: f.pooledMassPercent,
@@ -637,17 +570,13 @@ func (f *Fat) Melt() (*Result, error) {
 	for _, t := range reportingTemperaturesC {
 		r.ReportingPoints = append(r.ReportingPoints, SFCPoint{t, sfcAt[t]})
 	}
-	clear, err := f.mixture.clearPointK(opt.SolidModel, 0, opt.MaxIterations)
-	if err != nil {
-		return nil, err
-	}
 	r.ClearPointC = clear - zeroCelsiusK
-	slip, ok, err := f.slipPoint(w, known)
+	slip, ok, err := f.slipPoint(w, known, clear)
 	if err != nil {
 		return nil, err
 	}
 	r.SlipMeltingPointC, r.SlipMeltingPointDefined = slip-zeroCelsiusK, ok
-	r.MainSpecies = f.mainSpecies(opt.MainSpecies)
+	r.MainSpecies = f.mainSpecies()
 	r.Parameters = f.parameters()
 	r.Assumptions = f.assumptions()
 	r.Warnings = slices.Clone(f.warnings)
@@ -698,38 +627,27 @@ func distributionWords(c CompositionOptions) string {
 }
 
 func modelWords(m SolidModel) string {
-	if m == IdealSolidSolution {
+	switch m {
+	case IdealSolidSolution:
 		return "one ideal solid solution"
+	case SolidSolutionFamilies:
+		return "ideal solid solutions of near-isomorphous TAG families (same unsaturation, total acyl carbons " +
+			"within a 6-carbon band), mutually immiscible"
 	}
 	return "multiple pure solid phases (eutectic)"
 }
 
-// mainSpecies returns the n largest species by mass.
-func (f *Fat) mainSpecies(n int) []SpeciesShare {
-	species := f.composition.Species
-	idx := make([]int, 0, n+1)
-	for si := range species {
-		m := species[si].MoleFraction * species[si].MolarMass
-		if len(idx) == n && m <= species[idx[n-1]].MoleFraction*species[idx[n-1]].MolarMass {
-			continue
-		}
-		pos := sort.Search(len(idx), func(k int) bool {
-			return species[idx[k]].MoleFraction*species[idx[k]].MolarMass < m
-		})
-		idx = slices.Insert(idx, pos, si)
-		if len(idx) > n {
-			idx = idx[:n]
-		}
-	}
-	out := make([]SpeciesShare, len(idx))
-	for k, si := range idx {
-		sp := species[si]
+// mainSpecies returns the species build kept as the largest by mass.
+func (f *Fat) mainSpecies() []SpeciesShare {
+	out := make([]SpeciesShare, len(f.main))
+	for k, e := range f.main {
+		sp := f.composition.species(e.sp)
 		out[k] = SpeciesShare{
 			Label: sp.Label(), ShortName: sp.ShortName(),
 			MolePercent:          100 * sp.MoleFraction,
 			MassPercent:          100 * sp.MoleFraction * sp.MolarMass / f.totalMass,
-			MeltingPointC:        f.tm[si] + f.opt.Calibration.TemperatureShiftK - zeroCelsiusK,
-			MeltingPointMeasured: f.measured[si],
+			MeltingPointC:        e.tmK + f.opt.Calibration.TemperatureShiftK - zeroCelsiusK,
+			MeltingPointMeasured: e.measured,
 		}
 	}
 	return out

@@ -3,6 +3,7 @@ package melting
 import (
 	"context"
 	"math"
+	"slices"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -323,7 +324,7 @@ func TestCurvesAreMonotoneAndConsistent(t *testing.T) {
 		temps = append(temps, -20+0.5*float64(i))
 	}
 	for name, fat := range fats {
-		for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution} {
+		for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution, SolidSolutionFamilies} {
 			for _, poly := range []Polymorph{Alpha, BetaPrime, Beta} {
 				opt := Options{Polymorph: poly, SolidModel: model, TemperaturesC: temps, Composition: CompositionOptions{SN2: fat.sn2}}
 				r, err := Melt(fat.p, opt)
@@ -360,18 +361,29 @@ func TestCurvesAreMonotoneAndConsistent(t *testing.T) {
 func TestPoolingChangesLittle(t *testing.T) {
 	coco := profileOf(t, acidPct{"6:0", 0.5}, acidPct{"8:0", 7.5}, acidPct{"10:0", 6.0}, acidPct{"12:0", 48.0},
 		acidPct{"14:0", 18.5}, acidPct{"16:0", 8.5}, acidPct{"18:0", 3.0}, acidPct{"18:1", 6.5}, acidPct{"18:2", 1.5})
-	for _, p := range []*chem.Profile{palmLike(t), soyLike(t), coco} {
-		pooled, err := Melt(p, Options{Composition: CompositionOptions{SN2: SN2Palm}})
-		require.NoError(t, err)
-		full, err := Melt(p, Options{Composition: CompositionOptions{SN2: SN2Palm, NoPooling: true}})
-		require.NoError(t, err)
-		require.Less(t, pooled.PooledMassPercent, 3.0)
-		require.InDelta(t, full.ClearPointC, pooled.ClearPointC, 0.25)
-		if full.SlipMeltingPointDefined {
-			require.InDelta(t, full.SlipMeltingPointC, pooled.SlipMeltingPointC, 0.25)
-		}
-		for i := range full.Curve {
-			require.InDelta(t, full.Curve[i].SFCPercent, pooled.Curve[i].SFCPercent, 0.3)
+	// Pure solids and one solid solution pool at DefaultPoolFloorMoleFraction
+	// (under 3 % of the mass); the families model pools within families at
+	// DefaultFamiliesPoolFloorMoleFraction, which moves far more mass but
+	// changes the results less (tolerances: ours, a tenth of the others).
+	tol := map[SolidModel]struct{ k, sfc float64 }{
+		MultiplePureSolids: {0.25, 0.3}, IdealSolidSolution: {0.25, 0.3}, SolidSolutionFamilies: {0.03, 0.03}}
+	for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution, SolidSolutionFamilies} {
+		for _, p := range []*chem.Profile{palmLike(t), soyLike(t), coco} {
+			pooled, err := Melt(p, Options{SolidModel: model, Composition: CompositionOptions{SN2: SN2Palm}})
+			require.NoError(t, err)
+			full, err := Melt(p, Options{SolidModel: model, Composition: CompositionOptions{SN2: SN2Palm, NoPooling: true}})
+			require.NoError(t, err)
+			if model != SolidSolutionFamilies {
+				require.Less(t, pooled.PooledMassPercent, 3.0)
+			}
+			require.InDelta(t, full.ClearPointC, pooled.ClearPointC, tol[model].k, "%s clear point", model)
+			if full.SlipMeltingPointDefined {
+				require.InDelta(t, full.SlipMeltingPointC, pooled.SlipMeltingPointC, tol[model].k, "%s slip", model)
+			}
+			for i := range full.Curve {
+				require.InDelta(t, full.Curve[i].SFCPercent, pooled.Curve[i].SFCPercent, tol[model].sfc,
+					"%s SFC at %g °C", model, full.Curve[i].TemperatureC)
+			}
 		}
 	}
 }
@@ -394,7 +406,7 @@ func TestMeltReportsSpeciesAndWarnings(t *testing.T) {
 	require.True(t, codes[WarnOutsideFit], "16:1 and 20:x are outside the fitted data")
 	require.True(t, codes[WarnPooled])
 	require.Equal(t, BetaPrime, r.Parameters.Polymorph)
-	require.Equal(t, MultiplePureSolids, r.Parameters.SolidModel)
+	require.Equal(t, SolidSolutionFamilies, r.Parameters.SolidModel)
 	require.NotEmpty(t, r.Assumptions)
 }
 
@@ -443,4 +455,174 @@ func TestCalibrationRecoversShift(t *testing.T) {
 	ce, ok := chem.AsError(err)
 	require.True(t, ok)
 	require.Equal(t, chem.KindInvalid, ce.Kind)
+}
+
+// TestFastExp checks the solver's exponential against math.Exp over the
+// range the solubility terms use and at the edges where it defers.
+func TestFastExp(t *testing.T) {
+	var worst float64
+	for i := 0; i <= 400000; i++ {
+		x := -200 + float64(i)*0.001
+		worst = math.Max(worst, math.Abs(fastExp(x)/math.Exp(x)-1))
+	}
+	require.Less(t, worst, 2e-15)
+	for _, x := range []float64{-800, -700, -699.9, 699.9, 700, 800, math.Inf(1), math.Inf(-1)} {
+		want, got := math.Exp(x), fastExp(x)
+		if math.IsInf(want, 0) || want == 0 {
+			require.Equal(t, want, got, "x=%g", x)
+			continue
+		}
+		require.InEpsilon(t, want, got, 2e-15, "x=%g", x)
+	}
+	require.True(t, math.IsNaN(fastExp(math.NaN())))
+}
+
+// TestFamiliesModelLimits checks the families solver against the two exact
+// models it generalises: with every component its own family it is the
+// eutectic model, with one family the ideal solid solution. The DOMAIN §10
+// toy mixture (three TAGs) and a wider random mixture are used, with both
+// the joint-Newton fast path and the bracketed nested iteration.
+func TestFamiliesModelLimits(t *testing.T) {
+	toy := []Component{
+		{MoleFraction: 0.05, MeltingPointK: 339.15, EnthalpyKJPerMol: 171, MolarMass: 800},
+		{MoleFraction: 0.25, MeltingPointK: 310.15, EnthalpyKJPerMol: 140, MolarMass: 800},
+		{MoleFraction: 0.70, MeltingPointK: 278.15, EnthalpyKJPerMol: 100, MolarMass: 800},
+	}
+	// A wider made-up mixture: 40 components, melting points 250–345 K,
+	// enthalpies 60–200 kJ/mol, molar masses 500–900 g/mol.
+	var wide []Component
+	for i := range 40 {
+		u := float64(i) / 39
+		wide = append(wide, Component{MoleFraction: 0.2 + math.Mod(7.3*u, 1), MeltingPointK: 250 + 95*math.Mod(3.7*u, 1),
+			EnthalpyKJPerMol: 60 + 140*math.Mod(5.1*u+0.2, 1), MolarMass: 500 + 400*u})
+	}
+	for name, comps := range map[string][]Component{"toy": toy, "wide": wide} {
+		one := slices.Clone(comps)
+		each := slices.Clone(comps)
+		for i := range each {
+			each[i].Family = i
+		}
+		mOne, err := NewMixture(one)
+		require.NoError(t, err)
+		mEach, err := NewMixture(each)
+		require.NoError(t, err)
+		require.Equal(t, 1, mOne.Families())
+		require.Equal(t, len(comps), mEach.Families())
+		for _, nested := range []bool{false, true} {
+			wOne, wEach := mOne.newWorkspace(), mEach.newWorkspace()
+			wOne.nestedOnly, wEach.nestedOnly = nested, nested
+			for tc := -40.0; tc <= 75; tc += 2.5 {
+				tK := tc + zeroCelsiusK
+				eut, err := mEach.sfc(MultiplePureSolids, tK, 0, 0, mEach.newWorkspace())
+				require.NoError(t, err)
+				fam, err := mEach.sfc(SolidSolutionFamilies, tK, 0, 0, wEach)
+				require.NoError(t, err)
+				require.InDelta(t, eut, fam, 1e-9, "%s singletons at %g °C (nested %v)", name, tc, nested)
+				iss, err := mOne.sfc(IdealSolidSolution, tK, 0, 0, mOne.newWorkspace())
+				require.NoError(t, err)
+				fam, err = mOne.sfc(SolidSolutionFamilies, tK, 0, 0, wOne)
+				require.NoError(t, err)
+				require.InDelta(t, iss, fam, 1e-9, "%s one family at %g °C (nested %v)", name, tc, nested)
+			}
+		}
+		for _, pair := range []struct {
+			m     *Mixture
+			model SolidModel
+		}{{mEach, MultiplePureSolids}, {mOne, IdealSolidSolution}} {
+			want, err := pair.m.ClearPointC(pair.model, 0)
+			require.NoError(t, err)
+			got, err := pair.m.ClearPointC(SolidSolutionFamilies, 0)
+			require.NoError(t, err)
+			require.InDelta(t, want, got, 1e-9, "%s clear point vs %s", name, pair.model)
+		}
+	}
+}
+
+// TestFamiliesEquilibriumConditions checks the solution of the families
+// model on real fats against the equilibrium conditions themselves: the
+// liquid mole fractions sum to one, every present family's solid mole
+// fractions sum to one, and every absent family is stable
+// (Σ K_i·x_i,liquid ≤ 1); the fast path and the nested iteration agree.
+func TestFamiliesEquilibriumConditions(t *testing.T) {
+	for _, c := range loadValidationCases(t) {
+		for _, poly := range []Polymorph{Alpha, BetaPrime, Beta} {
+			f, err := Prepare(c.profile(t), Options{Polymorph: poly, SolidModel: SolidSolutionFamilies,
+				Composition: CompositionOptions{SN2: c.sn2(t), NoPooling: true}})
+			require.NoError(t, err)
+			m := f.Mixture()
+			w, wn := m.newWorkspace(), m.newWorkspace()
+			wn.nestedOnly = true
+			for tc := -10.0; tc <= 50; tc += 1.5 {
+				tK := tc + zeroCelsiusK
+				v, err := m.sfc(SolidSolutionFamilies, tK, 0, 0, w)
+				require.NoError(t, err)
+				vn, err := m.sfc(SolidSolutionFamilies, tK, 0, 0, wn)
+				require.NoError(t, err)
+				require.InDelta(t, vn, v, 1e-8, "%s %s %g °C: fast path vs nested", c.Name, poly, tc)
+				if v == 0 || v == 100 {
+					continue
+				}
+				var sumLiquid float64
+				for fi := 0; fi < m.Families(); fi++ {
+					var sumK float64
+					for i := m.famOff[fi]; i < m.famOff[fi+1]; i++ {
+						k := math.Exp(m.a[i]/tK - m.c[i])
+						x := m.z[i] / (w.liquid * (1 + w.t[fi]*k))
+						sumLiquid += x
+						sumK += k * x
+					}
+					if w.t[fi] > 0 {
+						require.InDelta(t, 1, sumK, 1e-9, "%s %g °C family %d present", c.Name, tc, fi)
+					} else {
+						require.LessOrEqual(t, sumK, 1+1e-9, "%s %g °C family %d absent must be stable", c.Name, tc, fi)
+					}
+				}
+				require.InDelta(t, 1, sumLiquid, 1e-9, "%s %g °C liquid", c.Name, tc)
+			}
+		}
+	}
+}
+
+// TestFamilyRule pins the grouping rule on named TAGs: near-isomorphous
+// species share a family, monoacid TAGs two carbons per chain apart and
+// different unsaturation classes do not.
+func TestFamilyRule(t *testing.T) {
+	sat := func(c int) chain { return chain{carbons: c, kind: kindSaturated} }
+	ole := chain{carbons: 18, kind: kindCisMonoene}
+	ela := chain{carbons: 18, kind: kindTransMonoene}
+	same := func(a, b [3]chain) bool { return familyOf(a[0], a[1], a[2]) == familyOf(b[0], b[1], b[2]) }
+	LaLaLa := [3]chain{sat(12), sat(12), sat(12)}
+	require.True(t, same(LaLaLa, [3]chain{sat(12), sat(12), sat(14)}), "LaLaLa with LaLaM")
+	require.True(t, same(LaLaLa, [3]chain{sat(10), sat(12), sat(12)}), "LaLaLa with CLaLa")
+	require.False(t, same(LaLaLa, [3]chain{sat(14), sat(14), sat(14)}), "LaLaLa and MMM are eutectic")
+	PPP := [3]chain{sat(16), sat(16), sat(16)}
+	require.True(t, same(PPP, [3]chain{sat(16), sat(16), sat(18)}), "PPP with PPS")
+	require.False(t, same(PPP, [3]chain{sat(18), sat(18), sat(18)}), "PPP and SSS are eutectic")
+	require.False(t, same([3]chain{sat(16), ole, sat(16)}, [3]chain{ole, ole, sat(16)}), "POP and OOP are eutectic")
+	require.True(t, same([3]chain{sat(16), ole, sat(16)}, [3]chain{sat(16), ole, sat(14)}), "POP with POM")
+	require.False(t, same([3]chain{ela, ela, ela}, [3]chain{sat(18), sat(18), sat(18)}), "EEE and SSS")
+}
+
+// TestPrepareGroupsByFamilyRule checks that the mixture Prepare lays out
+// has exactly the families familyOf assigns to the species, with their
+// mole fractions.
+func TestPrepareGroupsByFamilyRule(t *testing.T) {
+	for _, c := range loadValidationCases(t) {
+		f, err := Prepare(c.profile(t), Options{Composition: CompositionOptions{SN2: c.sn2(t), NoPooling: true}})
+		require.NoError(t, err)
+		want := map[familyKey]float64{}
+		for _, sp := range f.Composition().Species {
+			want[familyOf(chainOf(sp.Outer1), chainOf(sp.Middle), chainOf(sp.Outer2))] += sp.MoleFraction
+		}
+		m := f.Mixture()
+		require.Equal(t, len(want), m.Families(), c.Name)
+		var got, exp []float64
+		for _, z := range want {
+			exp = append(exp, z)
+		}
+		got = append(got, m.famZ...)
+		slices.Sort(got)
+		slices.Sort(exp)
+		require.InDeltaSlice(t, exp, got, 1e-12, c.Name)
+	}
 }

@@ -26,7 +26,8 @@ const (
 
 // DefaultPolymorph is the form used when a request names none: β′, the form
 // unstabilised SFC of hardened and palm-based fats mostly reflects (DOMAIN
-// §10). The validation in testdata/melting/VALIDATION.md was run with it.
+// §10) and the stable form of lauric fats. One polymorph serves every fat
+// class; the validation in testdata/melting/VALIDATION.md was run with it.
 const DefaultPolymorph = BetaPrime
 
 // String gives the name the API uses: "alpha", "beta_prime", "beta".
