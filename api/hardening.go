@@ -36,6 +36,26 @@ type HardeningTarget struct {
 	IodineValue        *float64 `json:"iodine_value,omitempty"`
 	IodineValueDrop    *float64 `json:"iodine_value_drop,omitempty"`
 	HydrogenKgPerTonne *float64 `json:"hydrogen_kg_per_tonne,omitempty"`
+	SlipMeltingPointC  *float64 `json:"slip_melting_point_c,omitempty"`
+}
+
+// ForecastMelting are the melting-model options of a slip-melting-point
+// target.
+type ForecastMelting struct {
+	Polymorph            string              `json:"polymorph,omitempty"`
+	SolidModel           string              `json:"solid_model,omitempty"`
+	Distribution         string              `json:"distribution,omitempty"`
+	Sn2Estimate          string              `json:"sn2_estimate,omitempty"`
+	SlipThresholdPercent *float64            `json:"slip_threshold_percent,omitempty"`
+	Calibration          *MeltingCalibration `json:"calibration,omitempty"`
+}
+
+// MeltingTargetBody reports a slip-melting-point target.
+type MeltingTargetBody struct {
+	TargetSlipMeltingPointC float64  `json:"target_slip_melting_point_c"`
+	SlipMeltingPointC       float64  `json:"slip_melting_point_c"`
+	FeedSlipMeltingPointC   *float64 `json:"feed_slip_melting_point_c"`
+	IodineValue             float64  `json:"iodine_value"`
 }
 
 // ForecastRequest is the body of POST /v1/hardening/forecast.
@@ -45,6 +65,7 @@ type ForecastRequest struct {
 	Target     *HardeningTarget `json:"target"`
 	Catalyst   *CatalystChoice  `json:"catalyst"`
 	PathPoints *int             `json:"path_points,omitempty"`
+	Melting    *ForecastMelting `json:"melting,omitempty"`
 }
 
 // ProfileOut is a composition in the profile shape.
@@ -98,6 +119,7 @@ type ForecastResponse struct {
 	Sn13ProductProfile *ProfileOut        `json:"sn13_product_profile,omitempty"`
 	Hydrogen           ForecastHydrogen   `json:"hydrogen"`
 	Path               []ForecastPoint    `json:"path"`
+	MeltingTarget      *MeltingTargetBody `json:"melting_target,omitempty"`
 	Flags              ForecastFlags      `json:"flags"`
 	Catalyst           CatalystUsed       `json:"catalyst"`
 	Cautions           []string           `json:"cautions"`
@@ -184,10 +206,13 @@ func toForecastTarget(t *HardeningTarget) (hardening.Target, error) {
 			n++
 			tg = hardening.HydrogenKgPerTonne(*t.HydrogenKgPerTonne)
 		}
+		if t.SlipMeltingPointC != nil {
+			n++
+		}
 	}
 	if n != 1 {
 		return tg, NewError(KindMalformed, "give exactly one target",
-			FieldError{Pointer: "/target", Reason: "exactly one of iodine_value, iodine_value_drop and hydrogen_kg_per_tonne is required"})
+			FieldError{Pointer: "/target", Reason: "exactly one of iodine_value, iodine_value_drop, hydrogen_kg_per_tonne and slip_melting_point_c is required"})
 	}
 	return tg, nil
 }
@@ -263,16 +288,46 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		if body.PathPoints != nil {
 			req.PathPoints = *body.PathPoints
 		}
-		res, err := hardening.Forecast(c.Request().Context(), cat, req)
-		if err != nil {
-			return renamePaths(err, forecastRenames)
+		var res *hardening.ForecastResult
+		var meltingTarget *MeltingTargetBody
+		if body.Target.SlipMeltingPointC != nil {
+			mb := MeltingRequest{}
+			if m := body.Melting; m != nil {
+				mb = MeltingRequest{Polymorph: m.Polymorph, SolidModel: m.SolidModel, Distribution: m.Distribution,
+					Sn2Estimate: m.Sn2Estimate, SlipThresholdPercent: m.SlipThresholdPercent, Calibration: m.Calibration}
+			}
+			mopt, _, err := toMeltingOptions(cat, &mb, feed, "/melting")
+			if err != nil {
+				return err
+			}
+			st, err := hardening.ForecastToSlipMeltingPoint(c.Request().Context(), cat, req, *body.Target.SlipMeltingPointC, mopt)
+			if err != nil {
+				return renamePaths(meltingErrorUnder(err, "melting"), forecastRenames)
+			}
+			res = st.ForecastResult
+			meltingTarget = &MeltingTargetBody{
+				TargetSlipMeltingPointC: st.TargetSlipMeltingPointC,
+				SlipMeltingPointC:       st.SlipMeltingPointC,
+				FeedSlipMeltingPointC:   finiteOrNil(st.FeedSlipMeltingPointC),
+				IodineValue:             st.FinalIodineValue,
+			}
+		} else {
+			if body.Melting != nil {
+				return NewError(KindMalformed, "melting options go only with a slip_melting_point_c target",
+					FieldError{Pointer: "/melting", Reason: "only with target slip_melting_point_c"})
+			}
+			if res, err = hardening.Forecast(c.Request().Context(), cat, req); err != nil {
+				return renamePaths(err, forecastRenames)
+			}
 		}
 		rec.Calculation("hardening_forecast")
 		warnings := append(toWarnings(feed.Warnings, "profile"), toWarnings(renameWarnings(res.Warnings, forecastRenames))...)
 		if sn2 != nil {
 			warnings = append(warnings, toWarnings(sn2.Warnings, "sn2_profile")...)
 		}
-		return respond(c, http.StatusOK, fromForecast(res, preset, warnings))
+		out := fromForecast(res, preset, warnings)
+		out.MeltingTarget = meltingTarget
+		return respond(c, http.StatusOK, out)
 	}
 }
 

@@ -35,4 +35,6 @@ func Routes(e *echo.Echo, d Deps) {
 	e.POST("/v1/hardening/forecast", handleForecast(d.Catalogue, d.Recorder))
 	e.GET("/v1/hardening/presets", handlePresets())
 	e.POST("/v1/hardening/fit", handleFit(d.Catalogue, d.Recorder))
+	e.POST("/v1/melting", handleMelting(d.Catalogue, d.Recorder))
+	e.POST("/v1/melting/calibrate", handleCalibrate(d.Catalogue, d.Recorder))
 }

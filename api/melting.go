@@ -1,0 +1,442 @@
+package api
+
+import (
+	"fmt"
+	"math"
+	"net/http"
+
+	"github.com/labstack/echo/v4"
+
+	"lipidsvc/chem"
+	"lipidsvc/chem/melting"
+)
+
+// EnrichmentFactor is one acid's relative sn-2 preference.
+type EnrichmentFactor struct {
+	Acid   string  `json:"acid"`
+	Factor float64 `json:"factor"`
+}
+
+// MeltingCalibration is a fitted correction of the melting model.
+type MeltingCalibration struct {
+	TemperatureShiftK    float64 `json:"temperature_shift_k"`
+	SlipThresholdPercent float64 `json:"slip_threshold_percent"`
+}
+
+// SFCPoint is one point of an SFC curve.
+type SFCPoint struct {
+	TemperatureC    float64 `json:"temperature_c"`
+	SolidFatPercent float64 `json:"solid_fat_percent"`
+}
+
+// MeltingMeasurements are measured melting data of the same fat.
+type MeltingMeasurements struct {
+	SFCPoints         []SFCPoint `json:"sfc_points,omitempty"`
+	SlipMeltingPointC *float64   `json:"slip_melting_point_c,omitempty"`
+}
+
+// MeltingRequest is the body of POST /v1/melting (and, with measured
+// required, of POST /v1/melting/calibrate).
+type MeltingRequest struct {
+	Profile              *ProfileBody         `json:"profile"`
+	Sn2Profile           *ProfileBody         `json:"sn2_profile,omitempty"`
+	Distribution         string               `json:"distribution,omitempty"`
+	Sn2Estimate          string               `json:"sn2_estimate,omitempty"`
+	Sn2EnrichmentFactors []EnrichmentFactor   `json:"sn2_enrichment_factors,omitempty"`
+	Polymorph            string               `json:"polymorph,omitempty"`
+	SolidModel           string               `json:"solid_model,omitempty"`
+	TemperaturesC        []float64            `json:"temperatures_c,omitempty"`
+	SlipThresholdPercent *float64             `json:"slip_threshold_percent,omitempty"`
+	Calibration          *MeltingCalibration  `json:"calibration,omitempty"`
+	MainSpeciesCount     *int                 `json:"main_species_count,omitempty"`
+	Measured             *MeltingMeasurements `json:"measured,omitempty"`
+}
+
+// MeltingError compares predictions with measurements.
+type MeltingError struct {
+	SFCPoints             int      `json:"sfc_points"`
+	SFCRMSErrorPercent    *float64 `json:"sfc_rms_error_percent"`
+	SFCMaxAbsErrorPercent *float64 `json:"sfc_max_abs_error_percent"`
+	SlipErrorK            *float64 `json:"slip_error_k"`
+}
+
+// MainSpecies is one of the largest TAG species.
+type MainSpecies struct {
+	TAG                  string  `json:"tag"`
+	ShortName            string  `json:"short_name"`
+	MolePercent          float64 `json:"mole_percent"`
+	MassPercent          float64 `json:"mass_percent"`
+	MeltingPointC        float64 `json:"melting_point_c"`
+	MeltingPointMeasured bool    `json:"melting_point_measured"`
+}
+
+// MeltingParameters echoes what the result was computed with.
+type MeltingParameters struct {
+	Polymorph             string             `json:"polymorph"`
+	SolidModel            string             `json:"solid_model"`
+	Distribution          string             `json:"distribution"`
+	Sn2Estimate           *string            `json:"sn2_estimate"`
+	PoolFloorMoleFraction float64            `json:"pool_floor_mole_fraction"`
+	SlipThresholdPercent  float64            `json:"slip_threshold_percent"`
+	Calibration           MeltingCalibration `json:"calibration"`
+}
+
+// MeltingResponse is the answer of POST /v1/melting.
+type MeltingResponse struct {
+	SlipMeltingPointC    *float64          `json:"slip_melting_point_c"`
+	ClearPointC          float64           `json:"clear_point_c"`
+	SolidFatAt37CPercent float64           `json:"solid_fat_at_37c_percent"`
+	Curve                []SFCPoint        `json:"curve"`
+	ReportingPoints      []SFCPoint        `json:"reporting_points"`
+	MainSpecies          []MainSpecies     `json:"main_species"`
+	SpeciesCount         int               `json:"species_count"`
+	ComponentCount       int               `json:"component_count"`
+	PooledSpecies        int               `json:"pooled_species"`
+	PooledMassPercent    float64           `json:"pooled_mass_percent"`
+	MeasuredOverrides    int               `json:"measured_overrides"`
+	Parameters           MeltingParameters `json:"parameters"`
+	Assumptions          []string          `json:"assumptions"`
+	Comparison           *MeltingError     `json:"comparison,omitempty"`
+	Warnings             []WarningBody     `json:"warnings"`
+}
+
+// CalibrateResponse is the answer of POST /v1/melting/calibrate.
+type CalibrateResponse struct {
+	Calibration MeltingCalibration `json:"calibration"`
+	Before      MeltingError       `json:"before"`
+	After       MeltingError       `json:"after"`
+	Warnings    []WarningBody      `json:"warnings"`
+}
+
+var (
+	polymorphs = map[string]melting.Polymorph{
+		"": melting.DefaultPolymorph, "alpha": melting.Alpha, "beta_prime": melting.BetaPrime, "beta": melting.Beta,
+	}
+	solidModels = map[string]melting.SolidModel{
+		"":                        melting.DefaultSolidModel,
+		"solid_solution_families": melting.SolidSolutionFamilies,
+		"multiple_pure_solids":    melting.MultiplePureSolids,
+		"ideal_solid_solution":    melting.IdealSolidSolution,
+	}
+	distributions = map[string]melting.Distribution{
+		"": melting.DefaultDistribution, "sn13_random_sn2_random": melting.Positional, "full_random": melting.FullRandom,
+	}
+	sn2Estimates = map[string]melting.SN2Estimate{
+		"": melting.DefaultSN2Estimate, "seed_oil_rule": melting.SN2SeedOil, "palm_rule": melting.SN2Palm,
+	}
+)
+
+// meltingPathRenames maps the melting package's field paths onto the
+// request body.
+func meltingPath(path []any) []any {
+	if len(path) >= 2 && path[0] == "composition" {
+		switch path[1] {
+		case "distribution", "sn2_estimate", "sn2_profile", "sn2_enrichment_factors":
+			return path[1:]
+		}
+	}
+	if len(path) >= 1 && path[0] == "measurements" {
+		return []any{"measured"}
+	}
+	if len(path) >= 1 && path[0] == "sfc_points" {
+		p := append([]any{"measured"}, path...)
+		if len(p) == 4 && p[3] == "sfc_percent" {
+			p[3] = "solid_fat_percent"
+		}
+		return p
+	}
+	if len(path) == 1 && path[0] == "slip_melting_point_c" {
+		return []any{"measured", "slip_melting_point_c"}
+	}
+	return path
+}
+
+func meltingError(err error) error {
+	ce, ok := chem.AsError(err)
+	if !ok {
+		return err
+	}
+	out := *ce
+	out.Fields = make([]chem.FieldError, len(ce.Fields))
+	for i, f := range ce.Fields {
+		f.Path = meltingPath(f.Path)
+		out.Fields[i] = f
+	}
+	return &out
+}
+
+// meltingErrorUnder maps melting option paths under a prefix (the
+// forecast's "melting" object); other paths are left alone.
+func meltingErrorUnder(err error, prefix string) error {
+	ce, ok := chem.AsError(err)
+	if !ok {
+		return err
+	}
+	out := *ce
+	out.Fields = make([]chem.FieldError, len(ce.Fields))
+	for i, f := range ce.Fields {
+		if len(f.Path) > 0 {
+			switch f.Path[0] {
+			case "polymorph", "solid_model", "slip_threshold_percent", "calibration", "composition":
+				f.Path = append([]any{prefix}, meltingPath(f.Path)...)
+			}
+		}
+		out.Fields[i] = f
+	}
+	return &out
+}
+
+func enumValue[T any](m map[string]T, s, pointer, reason string) (T, error) {
+	v, ok := m[s]
+	if !ok {
+		var zero T
+		return zero, NewError(KindMalformed, "unknown value", FieldError{Pointer: pointer, Reason: reason})
+	}
+	return v, nil
+}
+
+// toMeltingOptions converts the melting options shared by /v1/melting, the
+// calibration and the hardening forecast's melting target.
+func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Profile, prefix string) (melting.Options, []WarningBody, error) {
+	var opt melting.Options
+	var warnings []WarningBody
+	var err error
+	if opt.Polymorph, err = enumValue(polymorphs, b.Polymorph, prefix+"/polymorph", "must be alpha, beta_prime or beta"); err != nil {
+		return opt, nil, err
+	}
+	if opt.SolidModel, err = enumValue(solidModels, b.SolidModel, prefix+"/solid_model",
+		"must be solid_solution_families, multiple_pure_solids or ideal_solid_solution"); err != nil {
+		return opt, nil, err
+	}
+	if opt.Composition.Distribution, err = enumValue(distributions, b.Distribution, prefix+"/distribution",
+		"must be sn13_random_sn2_random or full_random"); err != nil {
+		return opt, nil, err
+	}
+	if opt.Composition.SN2, err = enumValue(sn2Estimates, b.Sn2Estimate, prefix+"/sn2_estimate",
+		"must be seed_oil_rule or palm_rule"); err != nil {
+		return opt, nil, err
+	}
+	if b.Sn2Profile != nil && len(b.Sn2EnrichmentFactors) > 0 {
+		return opt, nil, NewError(KindMalformed, "give an sn-2 profile or enrichment factors, not both",
+			FieldError{Pointer: prefix + "/sn2_enrichment_factors", Reason: "not with sn2_profile"})
+	}
+	if b.Sn2Profile != nil {
+		sn2, err := toChemProfile(cat, b.Sn2Profile, "sn2_profile")
+		if err != nil {
+			return opt, nil, err
+		}
+		opt.Composition.SN2 = melting.SN2Supplied
+		opt.Composition.SN2Profile = sn2
+		warnings = append(warnings, toWarnings(sn2.Warnings, "sn2_profile")...)
+	}
+	if len(b.Sn2EnrichmentFactors) > 0 {
+		factors := make([]float64, len(profile.Components))
+		for i, f := range b.Sn2EnrichmentFactors {
+			ptr := Pointer("sn2_enrichment_factors", i, "acid")
+			r, err := cat.Resolve(f.Acid)
+			if err != nil || r.Acid == nil {
+				return opt, nil, NewError(KindUnprocessable, "unknown acid in the enrichment factors", FieldError{Pointer: ptr, Reason: "not a known fatty-acid label"})
+			}
+			found := false
+			for j, c := range profile.Components {
+				if c.Acid == r.Acid {
+					factors[j], found = f.Factor, true
+				}
+			}
+			if !found {
+				return opt, nil, NewError(KindUnprocessable, "an enrichment factor names an acid the profile does not have",
+					FieldError{Pointer: ptr, Reason: fmt.Sprintf("%s is not in the profile", r.Acid.ID)})
+			}
+		}
+		opt.Composition.SN2 = melting.SN2Enrichment
+		opt.Composition.EnrichmentFactors = factors
+	}
+	opt.TemperaturesC = b.TemperaturesC
+	if b.SlipThresholdPercent != nil {
+		opt.SlipThresholdPercent = *b.SlipThresholdPercent
+	}
+	if b.Calibration != nil {
+		opt.Calibration = melting.Calibration{
+			TemperatureShiftK:    b.Calibration.TemperatureShiftK,
+			SlipThresholdPercent: b.Calibration.SlipThresholdPercent,
+		}
+	}
+	if b.MainSpeciesCount != nil {
+		opt.MainSpecies = *b.MainSpeciesCount
+	}
+	return opt, warnings, nil
+}
+
+func toMeasurements(m *MeltingMeasurements) melting.Measurements {
+	var out melting.Measurements
+	if m == nil {
+		return out
+	}
+	for _, p := range m.SFCPoints {
+		out.SFC = append(out.SFC, melting.SFCPoint{TemperatureC: p.TemperatureC, SFCPercent: p.SolidFatPercent})
+	}
+	if m.SlipMeltingPointC != nil {
+		out.SlipMeltingPointC, out.HasSlipMeltingPoint = *m.SlipMeltingPointC, true
+	}
+	return out
+}
+
+func fromMeltingError(e melting.CalibrationError) MeltingError {
+	out := MeltingError{SFCPoints: e.SFCPoints}
+	if e.SFCPoints > 0 {
+		out.SFCRMSErrorPercent = finiteOrNil(e.SFCRMSErrorPercent)
+		out.SFCMaxAbsErrorPercent = finiteOrNil(e.SFCMaxAbsErrorPercent)
+	}
+	return out
+}
+
+func handleMelting(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
+	return func(c echo.Context) error {
+		var body MeltingRequest
+		if err := decodeStrict(c, &body); err != nil {
+			return err
+		}
+		p, err := toChemProfile(cat, body.Profile, "profile")
+		if err != nil {
+			return err
+		}
+		opt, warnings, err := toMeltingOptions(cat, &body, p, "")
+		if err != nil {
+			return err
+		}
+		fat, err := melting.Prepare(p, opt)
+		if err != nil {
+			return meltingError(err)
+		}
+		res, err := fat.Melt()
+		if err != nil {
+			return meltingError(err)
+		}
+		out := fromMelting(res, append(toWarnings(p.Warnings, "profile"), warnings...))
+		if body.Measured != nil {
+			cmp, err := compareMeasured(fat, res, toMeasurements(body.Measured))
+			if err != nil {
+				return meltingError(err)
+			}
+			out.Comparison = &cmp
+		}
+		rec.Calculation("melting")
+		return respond(c, http.StatusOK, out)
+	}
+}
+
+// compareMeasured states the prediction's error against measurements:
+// predicted minus measured.
+func compareMeasured(fat *melting.Fat, res *melting.Result, m melting.Measurements) (MeltingError, error) {
+	out := MeltingError{SFCPoints: len(m.SFC)}
+	if len(m.SFC) > 0 {
+		var ss, worst float64
+		for _, p := range m.SFC {
+			v, err := fat.SolidFatContent(p.TemperatureC)
+			if err != nil {
+				return out, err
+			}
+			d := v - p.SFCPercent
+			ss += d * d
+			worst = math.Max(worst, math.Abs(d))
+		}
+		out.SFCRMSErrorPercent = optional(math.Sqrt(ss / float64(len(m.SFC))))
+		out.SFCMaxAbsErrorPercent = optional(worst)
+	}
+	if m.HasSlipMeltingPoint && res.SlipMeltingPointDefined {
+		out.SlipErrorK = optional(res.SlipMeltingPointC - m.SlipMeltingPointC)
+	}
+	return out, nil
+}
+
+func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
+	return func(c echo.Context) error {
+		var body MeltingRequest
+		if err := decodeStrict(c, &body); err != nil {
+			return err
+		}
+		if body.Measured == nil {
+			return NewError(KindMalformed, "measurements are required", FieldError{Pointer: "/measured", Reason: "required"})
+		}
+		p, err := toChemProfile(cat, body.Profile, "profile")
+		if err != nil {
+			return err
+		}
+		opt, warnings, err := toMeltingOptions(cat, &body, p, "")
+		if err != nil {
+			return err
+		}
+		rep, err := melting.Calibrate(c.Request().Context(), p, opt, toMeasurements(body.Measured))
+		if err != nil {
+			return meltingError(err)
+		}
+		rec.Calculation("melting_calibration")
+		before, after := fromMeltingError(rep.Before), fromMeltingError(rep.After)
+		if body.Measured.SlipMeltingPointC != nil {
+			before.SlipErrorK, after.SlipErrorK = finiteOrNil(rep.Before.SlipErrorK), finiteOrNil(rep.After.SlipErrorK)
+		}
+		return respond(c, http.StatusOK, CalibrateResponse{
+			Calibration: MeltingCalibration{
+				TemperatureShiftK:    rep.Calibration.TemperatureShiftK,
+				SlipThresholdPercent: rep.Calibration.SlipThresholdPercent,
+			},
+			Before:   before,
+			After:    after,
+			Warnings: append(append(toWarnings(p.Warnings, "profile"), warnings...), toWarnings(renameWarningsFn(rep.Warnings, meltingPath))...),
+		})
+	}
+}
+
+func renameWarningsFn(ws []chem.Warning, f func([]any) []any) []chem.Warning {
+	out := make([]chem.Warning, len(ws))
+	for i, w := range ws {
+		w.Path = f(w.Path)
+		out[i] = w
+	}
+	return out
+}
+
+func fromMelting(r *melting.Result, warnings []WarningBody) MeltingResponse {
+	out := MeltingResponse{
+		ClearPointC:          r.ClearPointC,
+		SolidFatAt37CPercent: r.SFCAt37CPercent,
+		SpeciesCount:         r.SpeciesCount,
+		ComponentCount:       r.ComponentCount,
+		PooledSpecies:        r.PooledSpecies,
+		PooledMassPercent:    r.PooledMassPercent,
+		MeasuredOverrides:    r.MeasuredOverrides,
+		Assumptions:          r.Assumptions,
+		Parameters: MeltingParameters{
+			Polymorph:             r.Parameters.Polymorph.String(),
+			SolidModel:            r.Parameters.SolidModel.String(),
+			Distribution:          r.Parameters.Distribution.String(),
+			PoolFloorMoleFraction: r.Parameters.PoolFloorMoleFraction,
+			SlipThresholdPercent:  r.Parameters.SlipThresholdPercent,
+			Calibration: MeltingCalibration{
+				TemperatureShiftK:    r.Parameters.Calibration.TemperatureShiftK,
+				SlipThresholdPercent: r.Parameters.Calibration.SlipThresholdPercent,
+			},
+		},
+		Warnings: append(warnings, toWarnings(renameWarningsFn(r.Warnings, meltingPath))...),
+	}
+	if r.SlipMeltingPointDefined {
+		out.SlipMeltingPointC = optional(r.SlipMeltingPointC)
+	}
+	if r.Parameters.SN2Estimate != 0 {
+		s := r.Parameters.SN2Estimate.String()
+		out.Parameters.Sn2Estimate = &s
+	}
+	for _, p := range r.Curve {
+		out.Curve = append(out.Curve, SFCPoint{p.TemperatureC, p.SFCPercent})
+	}
+	for _, p := range r.ReportingPoints {
+		out.ReportingPoints = append(out.ReportingPoints, SFCPoint{p.TemperatureC, p.SFCPercent})
+	}
+	for _, s := range r.MainSpecies {
+		out.MainSpecies = append(out.MainSpecies, MainSpecies{
+			TAG: s.Label, ShortName: s.ShortName, MolePercent: s.MolePercent, MassPercent: s.MassPercent,
+			MeltingPointC: s.MeltingPointC, MeltingPointMeasured: s.MeltingPointMeasured,
+		})
+	}
+	return out
+}

@@ -1,0 +1,167 @@
+package api_test
+
+import (
+	"encoding/json"
+	"net/http"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/api"
+)
+
+// palmLike is the palm-like check vector of DOMAIN.md §3 (a test vector).
+const palmLike = `{"acids":[{"acid":"12:0","percent":0.2},{"acid":"14:0","percent":1.0},{"acid":"16:0","percent":44.0},
+ {"acid":"16:1 c9","percent":0.2},{"acid":"18:0","percent":4.5},{"acid":"18:1 c9","percent":39.2},{"acid":"18:2 c9,c12","percent":10.1},
+ {"acid":"18:3 c9,c12,c15","percent":0.3},{"acid":"20:0","percent":0.4},{"acid":"20:1 c11","percent":0.1}]}`
+
+// pkoBelitz is palm kernel oil as in Belitz, Grosch & Schieberle, Food
+// Chemistry, 4th ed. (2009), Table 14.8 (average composition).
+const pkoBelitz = `{"acids":[{"acid":"8:0","percent":6},{"acid":"10:0","percent":4},{"acid":"12:0","percent":47},{"acid":"14:0","percent":16},
+ {"acid":"16:0","percent":8},{"acid":"18:0","percent":2.5},{"acid":"18:1 c9","percent":14},{"acid":"18:2 c9,c12","percent":2.5}]}`
+
+func melt(t *testing.T, body string) api.MeltingResponse {
+	t.Helper()
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting", body: body})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	return decode[api.MeltingResponse](t, rec)
+}
+
+func requireNonIncreasing(t *testing.T, curve []api.SFCPoint) {
+	t.Helper()
+	for i := 1; i < len(curve); i++ {
+		require.Greater(t, curve[i].TemperatureC, curve[i-1].TemperatureC)
+		require.LessOrEqual(t, curve[i].SolidFatPercent, curve[i-1].SolidFatPercent+1e-9, "SFC rises at %g °C", curve[i].TemperatureC)
+	}
+}
+
+// TestMeltingPublishedRanges: palm oil (IV 50–55) slip melting point
+// 33–39 °C [pub: Codex CXS 210 Table 2; trade specification]; palm kernel
+// oil melting range 23–30 °C [pub: Belitz et al., Food Chemistry, Table
+// 14.8]. Coconut oil is outside its 23–26 °C range with the default model
+// (about 5 K high; testdata/melting/VALIDATION.md), so it is not asserted
+// here.
+func TestMeltingPublishedRanges(t *testing.T) {
+	palm := melt(t, `{"profile":`+palmLike+`,"sn2_estimate":"palm_rule"}`)
+	require.NotNil(t, palm.SlipMeltingPointC)
+	require.GreaterOrEqual(t, *palm.SlipMeltingPointC, 33.0)
+	require.LessOrEqual(t, *palm.SlipMeltingPointC, 39.0)
+	require.GreaterOrEqual(t, palm.ClearPointC, *palm.SlipMeltingPointC)
+	requireNonIncreasing(t, palm.Curve)
+	require.Len(t, palm.Curve, 61+3) // 0–60 °C in 1 °C steps plus 21.1, 26.7 and 33.3
+	require.Len(t, palm.ReportingPoints, 10)
+	require.Equal(t, "beta_prime", palm.Parameters.Polymorph)
+	require.Equal(t, "solid_solution_families", palm.Parameters.SolidModel)
+	require.Equal(t, "palm_rule", *palm.Parameters.Sn2Estimate)
+	require.NotEmpty(t, palm.MainSpecies)
+	require.NotEmpty(t, palm.Assumptions)
+
+	pko := melt(t, `{"profile":`+pkoBelitz+`}`)
+	require.NotNil(t, pko.SlipMeltingPointC)
+	require.GreaterOrEqual(t, *pko.SlipMeltingPointC, 23.0)
+	require.LessOrEqual(t, *pko.SlipMeltingPointC, 30.0)
+	requireNonIncreasing(t, pko.Curve)
+}
+
+func TestMeltingOptionsAndComparison(t *testing.T) {
+	for _, model := range []string{"solid_solution_families", "multiple_pure_solids", "ideal_solid_solution"} {
+		for _, poly := range []string{"alpha", "beta_prime", "beta"} {
+			got := melt(t, `{"profile":`+palmLike+`,"solid_model":"`+model+`","polymorph":"`+poly+`","temperatures_c":[40,10,20,30,20]}`)
+			require.Len(t, got.Curve, 4, "sorted, duplicates dropped")
+			requireNonIncreasing(t, got.Curve)
+		}
+	}
+	got := melt(t, `{"profile":`+palmLike+`,"distribution":"full_random","measured":{"sfc_points":[{"temperature_c":20,"solid_fat_percent":25}],"slip_melting_point_c":36}}`)
+	require.NotNil(t, got.Comparison)
+	require.Equal(t, 1, got.Comparison.SFCPoints)
+	require.NotNil(t, got.Comparison.SFCRMSErrorPercent)
+	require.NotNil(t, got.Comparison.SlipErrorK)
+	require.InDelta(t, *got.SlipMeltingPointC-36, *got.Comparison.SlipErrorK, 1e-9)
+	require.Nil(t, got.Parameters.Sn2Estimate)
+}
+
+// TestCalibrationRoundTrip: a measured slip melting point is met exactly by
+// the fitted temperature shift, and the calibration object is accepted by
+// /v1/melting.
+func TestCalibrationRoundTrip(t *testing.T) {
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate",
+		body: `{"profile":` + palmLike + `,"sn2_estimate":"palm_rule","measured":{"slip_melting_point_c":36.5}}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	cal := decode[api.CalibrateResponse](t, rec)
+	require.NotNil(t, cal.Before.SlipErrorK)
+	require.NotNil(t, cal.After.SlipErrorK)
+	require.InDelta(t, 0, *cal.After.SlipErrorK, 0.05)
+	body, err := json.Marshal(cal.Calibration)
+	require.NoError(t, err)
+	got := melt(t, `{"profile":`+palmLike+`,"sn2_estimate":"palm_rule","calibration":`+string(body)+`}`)
+	require.InDelta(t, 36.5, *got.SlipMeltingPointC, 0.05)
+}
+
+// TestForecastToSlipMeltingPointHTTP: hardening stops where the product's
+// slip melting point reaches the target, and reports the iodine value.
+func TestForecastToSlipMeltingPointHTTP(t *testing.T) {
+	got := forecast(t, `{"profile":`+soyFeed+`,"target":{"slip_melting_point_c":36},"catalyst":{"preset":"nickel_selective"},"path_points":5}`)
+	require.NotNil(t, got.MeltingTarget)
+	require.InDelta(t, 36, got.MeltingTarget.SlipMeltingPointC, 0.01)
+	require.InDelta(t, got.IodineValue, got.MeltingTarget.IodineValue, 1e-9)
+	require.Less(t, got.IodineValue, got.FeedIodineValue)
+	require.Len(t, got.Path, 5)
+	// The product's slip melting point by /v1/melting agrees.
+	prof, err := json.Marshal(got.ProductProfile)
+	require.NoError(t, err)
+	m := melt(t, `{"profile":`+string(prof)+`}`)
+	require.InDelta(t, 36, *m.SlipMeltingPointC, 0.05)
+}
+
+func TestMeltingBadRequests(t *testing.T) {
+	app := newApp(t)
+	cases := []struct {
+		name, path, body string
+		status           int
+		pointer          string
+	}{
+		{"unknown polymorph", "/v1/melting", `{"profile":` + palmLike + `,"polymorph":"gamma"}`, 400, "/polymorph"},
+		{"unknown model", "/v1/melting", `{"profile":` + palmLike + `,"solid_model":"glass"}`, 400, "/solid_model"},
+		{"temperature out of range", "/v1/melting", `{"profile":` + palmLike + `,"temperatures_c":[20,500]}`, 400, "/temperatures_c/1"},
+		{"empty temperatures", "/v1/melting", `{"profile":` + palmLike + `,"temperatures_c":[]}`, 400, "/temperatures_c"},
+		{"zero threshold", "/v1/melting", `{"profile":` + palmLike + `,"slip_threshold_percent":0}`, 400, "/slip_threshold_percent"},
+		{"calibration shift too large", "/v1/melting", `{"profile":` + palmLike + `,"calibration":{"temperature_shift_k":30}}`, 400, "/calibration/temperature_shift_k"},
+		{"enrichment without factor", "/v1/melting", `{"profile":` + palmLike + `,"sn2_enrichment_factors":[{"acid":"16:0","percent":1}]}`, 400, "/sn2_enrichment_factors/0/factor"},
+		{"enrichment acid not in profile", "/v1/melting", `{"profile":` + palmLike + `,"sn2_enrichment_factors":[{"acid":"DHA","factor":1}]}`, 422, "/sn2_enrichment_factors/0/acid"},
+		{"enrichment unknown acid", "/v1/melting", `{"profile":` + palmLike + `,"sn2_enrichment_factors":[{"acid":"blubber","factor":1}]}`, 422, "/sn2_enrichment_factors/0/acid"},
+		{"sn2 and enrichment", "/v1/melting", `{"profile":` + palmLike + `,"sn2_profile":` + palmLike + `,"sn2_enrichment_factors":[{"acid":"16:0","factor":1}]}`, 400, "/sn2_enrichment_factors"},
+		{"sn2 acid not in profile", "/v1/melting", `{"profile":` + palmLike + `,"sn2_profile":{"acids":[{"acid":"DHA","percent":100}]}}`, 422, ""},
+		{"empty measured", "/v1/melting", `{"profile":` + palmLike + `,"measured":{}}`, 400, "/measured"},
+		{"calibrate without measured", "/v1/melting/calibrate", `{"profile":` + palmLike + `}`, 400, "/measured"},
+		{"calibrate sfc above 100", "/v1/melting/calibrate", `{"profile":` + palmLike + `,"measured":{"sfc_points":[{"temperature_c":20,"solid_fat_percent":120}]}}`, 400, "/measured/sfc_points/0/solid_fat_percent"},
+		{"bad profile label", "/v1/melting", `{"profile":{"acids":[{"acid":"blubber","percent":100}]}}`, 422, "/profile/acids/0/acid"},
+		{"melting options without slip target", "/v1/hardening/forecast", `{"profile":` + soyFeed + `,"target":{"iodine_value":70},"catalyst":{"preset":"copper"},"melting":{"polymorph":"beta"}}`, 400, "/melting"},
+		{"slip target below feed", "/v1/hardening/forecast", `{"profile":` + palmLike + `,"target":{"slip_melting_point_c":0},"catalyst":{"preset":"copper"}}`, 422, "/target/slip_melting_point_c"},
+		{"slip target unreachable", "/v1/hardening/forecast", `{"profile":` + soyFeed + `,"target":{"slip_melting_point_c":110},"catalyst":{"preset":"copper"}}`, 422, "/target/slip_melting_point_c"},
+		{"slip target and iodine value", "/v1/hardening/forecast", `{"profile":` + soyFeed + `,"target":{"slip_melting_point_c":36,"iodine_value":70},"catalyst":{"preset":"copper"}}`, 400, "/target"},
+		{"melting bad polymorph", "/v1/hardening/forecast", `{"profile":` + soyFeed + `,"target":{"slip_melting_point_c":36},"catalyst":{"preset":"copper"},"melting":{"polymorph":"delta"}}`, 400, "/melting/polymorph"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			rec := do(t, app, call{method: http.MethodPost, path: tc.path, body: tc.body})
+			require.Equal(t, tc.status, rec.Code, rec.Body.String())
+			if tc.pointer != "" {
+				p := decode[api.Problem](t, rec)
+				var ptrs []string
+				for _, e := range p.Errors {
+					ptrs = append(ptrs, e.Pointer)
+				}
+				require.Contains(t, ptrs, tc.pointer, rec.Body.String())
+			}
+		})
+	}
+}
+
+func TestMeltingEnrichmentFactors(t *testing.T) {
+	// Palmitic acid strongly kept out of sn-2 versus let in: more PPP-type
+	// species raise the clear point.
+	out := melt(t, `{"profile":`+palmLike+`,"sn2_enrichment_factors":[{"acid":"18:1 c9","factor":1},{"acid":"18:2 c9,c12","factor":1}]}`)
+	in := melt(t, `{"profile":`+palmLike+`,"sn2_enrichment_factors":[{"acid":"16:0","factor":1},{"acid":"18:1 c9","factor":1},{"acid":"18:2 c9,c12","factor":1}]}`)
+	require.Equal(t, "enrichment_factors", *out.Parameters.Sn2Estimate)
+	require.NotEqual(t, out.ClearPointC, in.ClearPointC)
+}

@@ -1,0 +1,151 @@
+package hardening
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"lipidsvc/chem"
+	"lipidsvc/chem/melting"
+)
+
+// Limits of the search for a slip-melting-point target.
+const (
+	// slipToleranceK is how closely the product's slip melting point meets
+	// the target, K.
+	slipToleranceK = 0.01
+	// slipIterations caps the bisection on the iodine value.
+	slipIterations = 80
+	// lowestSearchIodineValue is the most the search hardens: near full
+	// saturation, where the slip melting point is at its highest.
+	lowestSearchIodineValue = 0.5
+)
+
+// SlipTargetResult is a forecast that stops where the product's slip melting
+// point reaches a target.
+type SlipTargetResult struct {
+	*ForecastResult
+	// TargetSlipMeltingPointC is the requested slip melting point, °C.
+	TargetSlipMeltingPointC float64
+	// SlipMeltingPointC is the product's slip melting point, °C, within
+	// 0.01 K of the target.
+	SlipMeltingPointC float64
+	// FeedSlipMeltingPointC is the feed's slip melting point, °C; NaN when
+	// the feed has none above melting.MinTemperatureC.
+	FeedSlipMeltingPointC float64
+	// Evaluations counts the forecasts made during the search.
+	Evaluations int
+}
+
+// ForecastToSlipMeltingPoint hardens req.Feed with req.Catalyst until the
+// product's slip melting point, computed by the melting model with mopt,
+// equals targetC; req.Target is ignored. Hardening raises the slip melting
+// point as the iodine value falls, so the search brackets the target
+// between the feed and an almost fully hardened product and bisects on the
+// final iodine value (which keeps working where pooling of minor TAG species
+// makes the slip melting point step slightly rather than vary smoothly).
+//
+// Errors: the forecast's and the melting model's; KindOutOfDomain with the
+// field path ("target", "slip_melting_point_c") when the feed already melts
+// at or above the target or even a fully hardened product stays below it;
+// KindNoConvergence past the iteration cap; ctx.Err() when ctx ends.
+func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req ForecastRequest, targetC float64, mopt melting.Options) (*SlipTargetResult, error) {
+	if math.IsNaN(targetC) || math.IsInf(targetC, 0) || targetC < melting.MinTemperatureC || targetC > melting.MaxTemperatureC {
+		return nil, chem.Errorf(chem.KindInvalid, "the slip melting point target must be a temperature from %g to %g °C",
+			melting.MinTemperatureC, melting.MaxTemperatureC).
+			WithField("out of range", "target", "slip_melting_point_c")
+	}
+	if req.Feed == nil {
+		return nil, chem.Errorf(chem.KindInvalid, "the feed is missing").WithField("required", "feed")
+	}
+	slip := func(p *chem.Profile) (float64, error) {
+		t, defined, err := melting.SlipMeltingPointC(p, mopt)
+		if err != nil {
+			return 0, err
+		}
+		if !defined {
+			return math.Inf(-1), nil
+		}
+		return t, nil
+	}
+	out := &SlipTargetResult{TargetSlipMeltingPointC: targetC}
+	feedSlip, err := slip(req.Feed)
+	if err != nil {
+		return nil, err
+	}
+	out.FeedSlipMeltingPointC = feedSlip
+	if math.IsInf(feedSlip, -1) {
+		out.FeedSlipMeltingPointC = math.NaN()
+	}
+	if feedSlip >= targetC {
+		return nil, chem.Errorf(chem.KindOutOfDomain,
+			"the feed's slip melting point (%.2f °C) is already at or above the target %.2f °C; hardening only raises it",
+			feedSlip, targetC).WithField("at or below the feed's slip melting point", "target", "slip_melting_point_c")
+	}
+	feedIV := chem.IodineValue(req.Feed, chem.MaterialTAG)
+	if !(feedIV > lowestSearchIodineValue) {
+		return nil, chem.Errorf(chem.KindOutOfDomain, "the feed has nothing to harden (iodine value %.3g)", feedIV).
+			WithField("nothing to harden", "feed", "acids")
+	}
+
+	// at forecasts the product at a final iodine value and returns its slip
+	// melting point.
+	at := func(iv float64, points int) (*ForecastResult, float64, error) {
+		r := req
+		r.Target = FinalIodineValue(iv)
+		r.PathPoints = points
+		res, err := Forecast(ctx, cat, r)
+		if err != nil {
+			return nil, 0, err
+		}
+		out.Evaluations++
+		s, err := slip(res.Product)
+		return res, s, err
+	}
+	_, hardest, err := at(lowestSearchIodineValue, MinPathPoints)
+	if err != nil {
+		return nil, err
+	}
+	if hardest < targetC {
+		return nil, chem.Errorf(chem.KindOutOfDomain,
+			"even hardened to iodine value %g the product's slip melting point is %.2f °C, below the target %.2f °C",
+			lowestSearchIodineValue, hardest, targetC).
+			WithField("above the reach of this feed and catalyst", "target", "slip_melting_point_c")
+	}
+	// Invariant: slip(hi IV) < target ≤ slip(lo IV).
+	lo, hi := lowestSearchIodineValue, feedIV
+	for i := 0; i < slipIterations; i++ {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		mid := (lo + hi) / 2
+		_, s, err := at(mid, MinPathPoints)
+		if err != nil {
+			return nil, err
+		}
+		if math.Abs(s-targetC) <= slipToleranceK || hi-lo < 1e-9 {
+			final, fs, err := at(mid, req.PathPoints)
+			if err != nil {
+				return nil, err
+			}
+			out.ForecastResult, out.SlipMeltingPointC = final, fs
+			if math.Abs(fs-targetC) > slipToleranceK {
+				// The slip melting point steps across the target between
+				// neighbouring iodine values (pooling of minor species):
+				// the nearest reachable product is reported, with a warning.
+				final.Warnings = append(final.Warnings, chem.Warning{Code: chem.WarnMethodScope, Message: fmt.Sprintf(
+					"the slip melting point steps across the target between adjacent iodine values; "+
+						"the nearest product melts at %.2f °C", fs), Path: []any{"target", "slip_melting_point_c"}})
+			}
+			return out, nil
+		}
+		if s >= targetC {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return nil, chem.Errorf(chem.KindNoConvergence,
+		"the slip melting point target was not reached within %d iterations", slipIterations).
+		WithField("target not reached within the solver's limits", "target", "slip_melting_point_c")
+}

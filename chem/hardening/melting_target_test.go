@@ -1,0 +1,72 @@
+package hardening
+
+import (
+	"context"
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/chem"
+	"lipidsvc/chem/melting"
+)
+
+func soyProfile(t *testing.T, cat *chem.Catalogue) *chem.Profile {
+	t.Helper()
+	// The soy-like check vector of DOMAIN.md §3 (a test vector, not a
+	// measured oil).
+	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
+		{Label: "16:0", Percent: 10.5}, {Label: "16:1 c9", Percent: 0.1}, {Label: "18:0", Percent: 4.0},
+		{Label: "18:1 c9", Percent: 23.0}, {Label: "18:2 c9,c12", Percent: 53.7}, {Label: "18:3 c9,c12,c15", Percent: 7.6},
+		{Label: "20:0", Percent: 0.4}, {Label: "20:1 c11", Percent: 0.3}, {Label: "22:0", Percent: 0.4},
+	}, 0)
+	require.NoError(t, err)
+	return p
+}
+
+// TestForecastToSlipMeltingPoint: the search meets the target within
+// 0.01 K, and the reported product is the forecast at the iodine value found
+// (its slip melting point recomputed independently agrees).
+func TestForecastToSlipMeltingPoint(t *testing.T) {
+	cat := chem.NewCatalogue()
+	preset, _ := PresetByName(PresetNickelSelective)
+	req := NewForecastRequest(soyProfile(t, cat), Target{}, preset.Catalyst)
+	for _, target := range []float64{30, 36, 42} {
+		res, err := ForecastToSlipMeltingPoint(context.Background(), cat, req, target, melting.Options{})
+		require.NoError(t, err, target)
+		require.InDelta(t, target, res.SlipMeltingPointC, 0.01)
+		again, defined, err := melting.SlipMeltingPointC(res.Product, melting.Options{})
+		require.NoError(t, err)
+		require.True(t, defined)
+		require.InDelta(t, res.SlipMeltingPointC, again, 1e-9)
+		require.Less(t, res.FinalIodineValue, res.FeedIodineValue)
+		require.Len(t, res.Path, DefaultPathPoints)
+		require.Less(t, res.Evaluations, slipIterations+3)
+	}
+	// A higher melting target needs a harder product.
+	a, err := ForecastToSlipMeltingPoint(context.Background(), cat, req, 32, melting.Options{})
+	require.NoError(t, err)
+	b, err := ForecastToSlipMeltingPoint(context.Background(), cat, req, 40, melting.Options{})
+	require.NoError(t, err)
+	require.Greater(t, a.FinalIodineValue, b.FinalIodineValue)
+}
+
+func TestForecastToSlipMeltingPointRejects(t *testing.T) {
+	cat := chem.NewCatalogue()
+	preset, _ := PresetByName(PresetNickelSelective)
+	req := NewForecastRequest(soyProfile(t, cat), Target{}, preset.Catalyst)
+	for _, target := range []float64{math.NaN(), 500, 119} {
+		_, err := ForecastToSlipMeltingPoint(context.Background(), cat, req, target, melting.Options{})
+		ce, ok := chem.AsError(err)
+		require.True(t, ok, "%v: %v", target, err)
+		require.Equal(t, []any{"target", "slip_melting_point_c"}, ce.Fields[0].Path)
+	}
+	// A feed that already melts above the target.
+	stearin, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{{Label: "18:0", Percent: 60}, {Label: "18:1 c9", Percent: 40}}, 0)
+	require.NoError(t, err)
+	req.Feed = stearin
+	_, err = ForecastToSlipMeltingPoint(context.Background(), cat, req, 10, melting.Options{})
+	ce, ok := chem.AsError(err)
+	require.True(t, ok)
+	require.Equal(t, chem.KindOutOfDomain, ce.Kind)
+}
