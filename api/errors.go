@@ -189,6 +189,33 @@ func fromChem(ce *chem.Error) *Error {
 	return e
 }
 
+// mapErrorPaths returns err with every chem field path passed through f,
+// which translates the science's vocabulary into the request's fields.
+// Errors that are not *chem.Error pass unchanged.
+func mapErrorPaths(err error, f func([]any) []any) error {
+	ce, ok := chem.AsError(err)
+	if !ok {
+		return err
+	}
+	out := *ce
+	out.Fields = make([]chem.FieldError, len(ce.Fields))
+	for i, fe := range ce.Fields {
+		fe.Path = f(fe.Path)
+		out.Fields[i] = fe
+	}
+	return &out
+}
+
+// mapWarningPaths does the same for warnings.
+func mapWarningPaths(ws []chem.Warning, f func([]any) []any) []chem.Warning {
+	out := make([]chem.Warning, len(ws))
+	for i, w := range ws {
+		w.Path = f(w.Path)
+		out[i] = w
+	}
+	return out
+}
+
 // withPrefix returns err with the chem field paths under prefix, so that a
 // profile's errors point into the request body where the profile sits.
 func withPrefix(err error, prefix ...any) error {

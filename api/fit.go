@@ -70,7 +70,7 @@ func finiteOrNil(v float64) *float64 {
 	return &v
 }
 
-var fitRenames = map[string]string{"free": "free_parameters"}
+var fitPath = renameFirst(map[string]string{"free": "free_parameters"})
 
 func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
@@ -118,10 +118,10 @@ func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		res, err := hardening.Fit(c.Request().Context(), cat, req)
 		if err != nil {
-			return renamePaths(err, fitRenames)
+			return mapErrorPaths(err, fitPath)
 		}
 		rec.Calculation("hardening_fit")
-		warnings = append(warnings, toWarnings(renameWarnings(res.Warnings, fitRenames))...)
+		warnings = append(warnings, toWarnings(mapWarningPaths(res.Warnings, fitPath))...)
 		return respond(c, http.StatusOK, fromFit(res, warnings))
 	}
 }

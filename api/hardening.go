@@ -39,17 +39,6 @@ type HardeningTarget struct {
 	SlipMeltingPointC  *float64 `json:"slip_melting_point_c,omitempty"`
 }
 
-// ForecastMelting are the melting-model options of a slip-melting-point
-// target.
-type ForecastMelting struct {
-	Polymorph            string              `json:"polymorph,omitempty"`
-	SolidModel           string              `json:"solid_model,omitempty"`
-	Distribution         string              `json:"distribution,omitempty"`
-	Sn2Estimate          string              `json:"sn2_estimate,omitempty"`
-	SlipThresholdPercent *float64            `json:"slip_threshold_percent,omitempty"`
-	Calibration          *MeltingCalibration `json:"calibration,omitempty"`
-}
-
 // MeltingTargetBody reports a slip-melting-point target.
 type MeltingTargetBody struct {
 	TargetSlipMeltingPointC float64  `json:"target_slip_melting_point_c"`
@@ -65,7 +54,7 @@ type ForecastRequest struct {
 	Target     *HardeningTarget `json:"target"`
 	Catalyst   *CatalystChoice  `json:"catalyst"`
 	PathPoints *int             `json:"path_points,omitempty"`
-	Melting    *ForecastMelting `json:"melting,omitempty"`
+	Melting    *MeltingModel    `json:"melting,omitempty"`
 }
 
 // ProfileOut is a composition in the profile shape.
@@ -217,47 +206,23 @@ func toForecastTarget(t *HardeningTarget) (hardening.Target, error) {
 	return tg, nil
 }
 
-// renamePaths maps the first element of chem field paths (and warning
-// paths) onto the request's field names.
-func renamePaths(err error, renames map[string]string) error {
-	ce, ok := chem.AsError(err)
-	if !ok {
-		return err
-	}
-	out := *ce
-	out.Fields = make([]chem.FieldError, len(ce.Fields))
-	for i, f := range ce.Fields {
-		f.Path = renamePath(f.Path, renames)
-		out.Fields[i] = f
-	}
-	return &out
-}
-
-func renamePath(path []any, renames map[string]string) []any {
-	if len(path) == 0 {
+// renameFirst returns a path mapper that renames the first element of a
+// chem path onto the request's field names.
+func renameFirst(renames map[string]string) func([]any) []any {
+	return func(path []any) []any {
+		if len(path) == 0 {
+			return path
+		}
+		if first, ok := path[0].(string); ok {
+			if r, ok := renames[first]; ok {
+				return append([]any{r}, path[1:]...)
+			}
+		}
 		return path
 	}
-	first, ok := path[0].(string)
-	if !ok {
-		return path
-	}
-	if r, ok := renames[first]; ok {
-		p := append([]any{r}, path[1:]...)
-		return p
-	}
-	return path
 }
 
-func renameWarnings(ws []chem.Warning, renames map[string]string) []chem.Warning {
-	out := make([]chem.Warning, len(ws))
-	for i, w := range ws {
-		w.Path = renamePath(w.Path, renames)
-		out[i] = w
-	}
-	return out
-}
-
-var forecastRenames = map[string]string{"feed": "profile", "sn2": "sn2_profile"}
+var forecastPath = renameFirst(map[string]string{"feed": "profile", "sn2": "sn2_profile"})
 
 func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
@@ -292,9 +257,8 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		var meltingTarget *MeltingTargetBody
 		if body.Target.SlipMeltingPointC != nil {
 			mb := MeltingRequest{}
-			if m := body.Melting; m != nil {
-				mb = MeltingRequest{Polymorph: m.Polymorph, SolidModel: m.SolidModel, Distribution: m.Distribution,
-					Sn2Estimate: m.Sn2Estimate, SlipThresholdPercent: m.SlipThresholdPercent, Calibration: m.Calibration}
+			if body.Melting != nil {
+				mb.MeltingModel = *body.Melting
 			}
 			mopt, _, err := toMeltingOptions(cat, &mb, feed, "/melting")
 			if err != nil {
@@ -302,7 +266,7 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			}
 			st, err := hardening.ForecastToSlipMeltingPoint(c.Request().Context(), cat, req, *body.Target.SlipMeltingPointC, mopt)
 			if err != nil {
-				return renamePaths(meltingErrorUnder(err, "melting"), forecastRenames)
+				return mapErrorPaths(err, func(p []any) []any { return forecastPath(meltingPathUnder(p, "melting")) })
 			}
 			res = st.ForecastResult
 			meltingTarget = &MeltingTargetBody{
@@ -317,11 +281,11 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 					FieldError{Pointer: "/melting", Reason: "only with target slip_melting_point_c"})
 			}
 			if res, err = hardening.Forecast(c.Request().Context(), cat, req); err != nil {
-				return renamePaths(err, forecastRenames)
+				return mapErrorPaths(err, forecastPath)
 			}
 		}
 		rec.Calculation("hardening_forecast")
-		warnings := append(toWarnings(feed.Warnings, "profile"), toWarnings(renameWarnings(res.Warnings, forecastRenames))...)
+		warnings := append(toWarnings(feed.Warnings, "profile"), toWarnings(mapWarningPaths(res.Warnings, forecastPath))...)
 		if sn2 != nil {
 			warnings = append(warnings, toWarnings(sn2.Warnings, "sn2_profile")...)
 		}

@@ -271,31 +271,21 @@ func toHydrogenRequest(cat *chem.Catalogue, b *HydrogenDemandRequest) (hardening
 	return req, warnings, nil
 }
 
-// hydrogenFieldPaths maps the chem field paths of the hydrogen calculation
-// onto the request's JSON shape where they differ.
-func hydrogenError(err error) error {
-	ce, ok := chem.AsError(err)
-	if !ok {
-		return err
+// hydrogenPaths are the chem field paths of the hydrogen calculation that
+// differ from the request's JSON shape.
+var hydrogenPaths = map[string][]any{
+	"/gas/loss_fraction": {"gas", "loss_percent"},
+	"/gas/purity":        {"gas", "purity_percent"},
+	"/heat/heat_capacity/intercept_j_per_g_k": {"heat", "heat_capacity_intercept_kj_per_kg_k"},
+	"/heat/heat_capacity/slope_j_per_g_k2":    {"heat", "heat_capacity_slope_kj_per_kg_k2"},
+	"/heat/heat_capacity":                     {"heat"},
+}
+
+func hydrogenPath(path []any) []any {
+	if p, ok := hydrogenPaths[Pointer(path...)]; ok {
+		return p
 	}
-	out := *ce
-	out.Fields = make([]chem.FieldError, len(ce.Fields))
-	for i, f := range ce.Fields {
-		out.Fields[i] = f
-		switch Pointer(f.Path...) {
-		case "/gas/loss_fraction":
-			out.Fields[i].Path = []any{"gas", "loss_percent"}
-		case "/gas/purity":
-			out.Fields[i].Path = []any{"gas", "purity_percent"}
-		case "/heat/heat_capacity/intercept_j_per_g_k":
-			out.Fields[i].Path = []any{"heat", "heat_capacity_intercept_kj_per_kg_k"}
-		case "/heat/heat_capacity/slope_j_per_g_k2":
-			out.Fields[i].Path = []any{"heat", "heat_capacity_slope_kj_per_kg_k2"}
-		case "/heat/heat_capacity":
-			out.Fields[i].Path = []any{"heat"}
-		}
-	}
-	return &out
+	return path
 }
 
 func handleHydrogenDemand(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
@@ -310,7 +300,7 @@ func handleHydrogenDemand(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		res, err := hardening.HydrogenDemand(req)
 		if err != nil {
-			return hydrogenError(err)
+			return mapErrorPaths(err, hydrogenPath)
 		}
 		rec.Calculation("hydrogen_demand")
 		return respond(c, http.StatusOK, fromHydrogenResult(req, res, toWarnings(warnings, "feed", "profile")))

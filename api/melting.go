@@ -35,19 +35,25 @@ type MeltingMeasurements struct {
 	SlipMeltingPointC *float64   `json:"slip_melting_point_c,omitempty"`
 }
 
+// MeltingModel are the melting-model options every melting calculation
+// takes, /v1/melting and a forecast's slip-melting-point target alike.
+type MeltingModel struct {
+	Polymorph            string              `json:"polymorph,omitempty"`
+	SolidModel           string              `json:"solid_model,omitempty"`
+	Distribution         string              `json:"distribution,omitempty"`
+	Sn2Estimate          string              `json:"sn2_estimate,omitempty"`
+	SlipThresholdPercent *float64            `json:"slip_threshold_percent,omitempty"`
+	Calibration          *MeltingCalibration `json:"calibration,omitempty"`
+}
+
 // MeltingRequest is the body of POST /v1/melting (and, with measured
 // required, of POST /v1/melting/calibrate).
 type MeltingRequest struct {
-	Profile              *ProfileBody         `json:"profile"`
-	Sn2Profile           *ProfileBody         `json:"sn2_profile,omitempty"`
-	Distribution         string               `json:"distribution,omitempty"`
-	Sn2Estimate          string               `json:"sn2_estimate,omitempty"`
+	Profile    *ProfileBody `json:"profile"`
+	Sn2Profile *ProfileBody `json:"sn2_profile,omitempty"`
+	MeltingModel
 	Sn2EnrichmentFactors []EnrichmentFactor   `json:"sn2_enrichment_factors,omitempty"`
-	Polymorph            string               `json:"polymorph,omitempty"`
-	SolidModel           string               `json:"solid_model,omitempty"`
 	TemperaturesC        []float64            `json:"temperatures_c,omitempty"`
-	SlipThresholdPercent *float64             `json:"slip_threshold_percent,omitempty"`
-	Calibration          *MeltingCalibration  `json:"calibration,omitempty"`
 	MainSpeciesCount     *int                 `json:"main_species_count,omitempty"`
 	Measured             *MeltingMeasurements `json:"measured,omitempty"`
 }
@@ -151,39 +157,16 @@ func meltingPath(path []any) []any {
 	return path
 }
 
-func meltingError(err error) error {
-	ce, ok := chem.AsError(err)
-	if !ok {
-		return err
-	}
-	out := *ce
-	out.Fields = make([]chem.FieldError, len(ce.Fields))
-	for i, f := range ce.Fields {
-		f.Path = meltingPath(f.Path)
-		out.Fields[i] = f
-	}
-	return &out
-}
-
-// meltingErrorUnder maps melting option paths under a prefix (the
+// meltingPathUnder maps melting option paths under a prefix (the
 // forecast's "melting" object); other paths are left alone.
-func meltingErrorUnder(err error, prefix string) error {
-	ce, ok := chem.AsError(err)
-	if !ok {
-		return err
-	}
-	out := *ce
-	out.Fields = make([]chem.FieldError, len(ce.Fields))
-	for i, f := range ce.Fields {
-		if len(f.Path) > 0 {
-			switch f.Path[0] {
-			case "polymorph", "solid_model", "slip_threshold_percent", "calibration", "composition":
-				f.Path = append([]any{prefix}, meltingPath(f.Path)...)
-			}
+func meltingPathUnder(path []any, prefix string) []any {
+	if len(path) > 0 {
+		switch path[0] {
+		case "polymorph", "solid_model", "slip_threshold_percent", "calibration", "composition":
+			return append([]any{prefix}, meltingPath(path)...)
 		}
-		out.Fields[i] = f
 	}
-	return &out
+	return path
 }
 
 func enumValue[T any](m map[string]T, s, pointer, reason string) (T, error) {
@@ -306,17 +289,17 @@ func handleMelting(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		fat, err := melting.Prepare(p, opt)
 		if err != nil {
-			return meltingError(err)
+			return mapErrorPaths(err, meltingPath)
 		}
 		res, err := fat.Melt()
 		if err != nil {
-			return meltingError(err)
+			return mapErrorPaths(err, meltingPath)
 		}
 		out := fromMelting(res, append(toWarnings(p.Warnings, "profile"), warnings...))
 		if body.Measured != nil {
 			cmp, err := compareMeasured(fat, res, toMeasurements(body.Measured))
 			if err != nil {
-				return meltingError(err)
+				return mapErrorPaths(err, meltingPath)
 			}
 			out.Comparison = &cmp
 		}
@@ -368,7 +351,7 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		rep, err := melting.Calibrate(c.Request().Context(), p, opt, toMeasurements(body.Measured))
 		if err != nil {
-			return meltingError(err)
+			return mapErrorPaths(err, meltingPath)
 		}
 		rec.Calculation("melting_calibration")
 		before, after := fromMeltingError(rep.Before), fromMeltingError(rep.After)
@@ -382,18 +365,9 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			},
 			Before:   before,
 			After:    after,
-			Warnings: append(append(toWarnings(p.Warnings, "profile"), warnings...), toWarnings(renameWarningsFn(rep.Warnings, meltingPath))...),
+			Warnings: append(append(toWarnings(p.Warnings, "profile"), warnings...), toWarnings(mapWarningPaths(rep.Warnings, meltingPath))...),
 		})
 	}
-}
-
-func renameWarningsFn(ws []chem.Warning, f func([]any) []any) []chem.Warning {
-	out := make([]chem.Warning, len(ws))
-	for i, w := range ws {
-		w.Path = f(w.Path)
-		out[i] = w
-	}
-	return out
 }
 
 func fromMelting(r *melting.Result, warnings []WarningBody) MeltingResponse {
@@ -417,7 +391,7 @@ func fromMelting(r *melting.Result, warnings []WarningBody) MeltingResponse {
 				SlipThresholdPercent: r.Parameters.Calibration.SlipThresholdPercent,
 			},
 		},
-		Warnings: append(warnings, toWarnings(renameWarningsFn(r.Warnings, meltingPath))...),
+		Warnings: append(warnings, toWarnings(mapWarningPaths(r.Warnings, meltingPath))...),
 	}
 	if r.SlipMeltingPointDefined {
 		out.SlipMeltingPointC = optional(r.SlipMeltingPointC)
