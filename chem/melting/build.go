@@ -11,12 +11,14 @@ import (
 // polymorph: ΔH and ΔS of a species are sums over its chains plus the
 // intercepts and the mismatch term.
 type prepared struct {
-	chains    []chain
-	hc, sc    []float64 // per-chain ΔH (kJ/mol) and ΔS (J/(mol·K)) parts
-	gm        []float64 // mismatch g(d) = 1 − exp(−(d/w)²) by carbon difference
-	k         PolymorphCoefficients
-	thetaK    float64 // compensation temperature
-	overrides []int16 // see resolveOverrides; nil when none apply
+	chains []chain
+	// Per-chain ΔH (kJ/mol) and ΔS (J/(mol·K)) parts at sn-1/3 and at sn-2.
+	hcOuter, scOuter []float64
+	hcSN2, scSN2     []float64
+	gx, gy           []float64 // mismatch terms f_x, f_y = 1 − exp(−(d/w)²) by carbon difference
+	k                PolymorphCoefficients
+	thetaK           float64 // compensation temperature
+	overrides        []int16 // see resolveOverrides; nil when none apply
 }
 
 // mainEntry is one of the largest species of a fat.
@@ -90,7 +92,9 @@ func (f *Fat) build(pr prepared) (outsideMass float64) {
 		}
 	}
 	kc := &pr.k
-	mismatchS := 1000 * kc.MismatchKJ / pr.thetaK // ΔS part of the mismatch term per unit f_xy
+	// ΔS parts of the mismatch terms per unit f_x and f_y.
+	sn2MismatchS := 1000 * kc.SN2MismatchKJ / pr.thetaK
+	outerMismatchS := 1000 * kc.OuterMismatchKJ / pr.thetaK
 	nMain := f.opt.MainSpecies
 	f.main = make([]mainEntry, 0, nMain+1)
 	var kept []keptSpecies
@@ -112,9 +116,9 @@ func (f *Fat) build(pr prepared) (outsideMass float64) {
 			ci, cl := pr.chains[i].carbons, pr.chains[l].carbons
 			short, long := min(ci, cl), max(ci, cl)
 			// The parts that do not depend on the middle chain.
-			gy := pr.gm[long-short]
-			hOuter := kc.EnthalpyInterceptKJ + pr.hc[i] + pr.hc[l] + kc.MismatchKJ*gy
-			sOuter := kc.EntropyInterceptJ + pr.sc[i] + pr.sc[l] + mismatchS*gy
+			gy := pr.gy[long-short]
+			hOuter := kc.EnthalpyInterceptKJ + pr.hcOuter[i] + pr.hcOuter[l] + kc.OuterMismatchKJ*gy
+			sOuter := kc.EntropyInterceptJ + pr.scOuter[i] + pr.scOuter[l] + outerMismatchS*gy
 			massOuter := chem.GlycerolBackboneIncrement + acidMass[i] + acidMass[l]
 			famOuter := famCode[i] + famCode[l]
 			inFitOuter := pr.chains[i].inFit && pr.chains[l].inFit
@@ -129,9 +133,9 @@ func (f *Fat) build(pr prepared) (outsideMass float64) {
 				if x < 0 {
 					x = -x
 				}
-				gx := pr.gm[x]
-				h := hOuter + pr.hc[j] + kc.MismatchKJ*gx
-				s := sOuter + pr.sc[j] + mismatchS*gx
+				gx := pr.gx[x]
+				h := hOuter + pr.hcSN2[j] + kc.SN2MismatchKJ*gx
+				s := sOuter + pr.scSN2[j] + sn2MismatchS*gx
 				var tm float64
 				if h < floorEnthalpyKJ || s <= 0 {
 					tm, h = floorMeltingPointK, floorEnthalpyKJ

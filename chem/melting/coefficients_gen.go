@@ -8,20 +8,21 @@ import "math"
 var fittedCoefficients = Coefficients{
 	Polymorphs: [3]PolymorphCoefficients{
 		{ // alpha
-			EnthalpyPerCarbonKJ: 2.390110377017867, EnthalpyInterceptKJ: -23.821922761626407, EntropyPerCarbonJ: 5.876133481230084, EntropyInterceptJ: 3.9559648247016974,
-			MismatchKJ: -1.7893646686085112, OddChainKJ: 0, CisMonoeneKJ: -12.228844286626853, TransMonoeneKJ: -5.914409854406576, DieneKJ: -13.042034937537801, TrieneKJ: -14.54144388726132,
+			EnthalpyPerCarbonKJ: 2.401598593857611, EnthalpyInterceptKJ: -20.361948069099164, EntropyPerCarbonJ: 5.822776043321748, EntropyInterceptJ: 19.159708936389436,
+			SN2MismatchKJ: -1.5020752056229205, OuterMismatchKJ: -4.092673473940568, OddChainKJ: 0, CisMonoeneSN2KJ: -19.246347331718397, CisMonoeneOuterKJ: -13.939714319001261, TransMonoeneKJ: -8.223810167716442, DieneKJ: -18.823904262859973, TrieneKJ: -20.609894467807763,
 		},
 		{ // beta_prime
-			EnthalpyPerCarbonKJ: 2.9096145393529285, EnthalpyInterceptKJ: -7.062521112615057, EntropyPerCarbonJ: 6.975135736921901, EntropyInterceptJ: 68.53876468279975,
-			MismatchKJ: -0.5464865480681977, OddChainKJ: 0, CisMonoeneKJ: -15.268488942508183, TransMonoeneKJ: -6.137259474401251, DieneKJ: -16.26884155700037, TrieneKJ: -18.135921901076554,
+			EnthalpyPerCarbonKJ: 3.1230382613358216, EnthalpyInterceptKJ: -18.69895824404788, EntropyPerCarbonJ: 7.718092172056007, EntropyInterceptJ: 27.766300994869688,
+			SN2MismatchKJ: -1.2978357623608923, OuterMismatchKJ: -1.4680184887817445, OddChainKJ: 0, CisMonoeneSN2KJ: -24.439943513965122, CisMonoeneOuterKJ: -16.925771126644374, TransMonoeneKJ: -9.897266284810764, DieneKJ: -23.246154824066277, TrieneKJ: -25.444672386779704,
 		},
 		{ // beta
-			EnthalpyPerCarbonKJ: 3.8504383261897006, EnthalpyInterceptKJ: -21.552579469719554, EntropyPerCarbonJ: 9.749697393612399, EntropyInterceptJ: 15.451171181534246,
-			MismatchKJ: -4.103423755085972, OddChainKJ: 0, CisMonoeneKJ: -18.92095514773316, TransMonoeneKJ: -7.614900165764123, DieneKJ: -20.235189762131306, TrieneKJ: -22.57084648445167,
+			EnthalpyPerCarbonKJ: 3.877841754506466, EnthalpyInterceptKJ: -17.33456818370771, EntropyPerCarbonJ: 9.622935681600104, EntropyInterceptJ: 36.17414524742408,
+			SN2MismatchKJ: -7.151359920699702, OuterMismatchKJ: -15.206196734377544, OddChainKJ: 0, CisMonoeneSN2KJ: -32.042738307265274, CisMonoeneOuterKJ: -17.842091419572682, TransMonoeneKJ: -11.522373722250617, DieneKJ: -27.17524959646137, TrieneKJ: -29.772213501270222,
 		},
 	},
-	CompensationTemperatureK: 1030.6616236364905,
-	MismatchWidthCarbons:     1.6689131380422177,
+	CompensationTemperatureK:  622.7455809094228,
+	SN2MismatchWidthCarbons:   4.5202822221253465,
+	OuterMismatchWidthCarbons: 3.6269611922684093,
 }
 
 // measuredOverrides are the measured rows of testdata/melting/pure_tag_thermo.csv (not marked doubtful),

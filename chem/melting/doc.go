@@ -15,10 +15,13 @@
 //     Species below a mole-fraction floor are pooled by melting point.
 //  2. Pure-TAG properties ([PureTAGProperties], properties.go): enthalpy and
 //     entropy of fusion each linear in the total acyl carbon number, with
-//     terms for chain-length mismatch, odd chains and cis-18:1, trans-18:1,
-//     18:2 and 18:3 chains — the published structure of Wesdorp's
-//     correlation (L.H. Wesdorp, thesis, Delft 1990; restated in Marangoni &
-//     Wesdorp, Structure and Properties of Fat Crystal Networks, 2nd ed.).
+//     terms for the sn-2 and the outer chain-length mismatch, odd chains and
+//     cis-18:1, trans-18:1, 18:2 and 18:3 chains — the published structure
+//     of Wesdorp's correlation (L.H. Wesdorp, thesis, Delft 1990; restated
+//     in Marangoni & Wesdorp, Structure and Properties of Fat Crystal
+//     Networks, 2nd ed.), except that cis-18:1 chains at sn-2 and at sn-1/3
+//     have separate terms (our extension, documented on
+//     [PolymorphCoefficients]).
 //     The coefficients are our own fit to testdata/melting/pure_tag_thermo.csv
 //     (see fit_test.go and testdata/melting/fit_coefficients.json); measured
 //     values override the correlation for the TAGs that have them.

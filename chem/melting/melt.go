@@ -227,34 +227,40 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	k := coef.For(opt.Polymorph)
 	n := len(comp.Acids)
 	chains := make([]chain, n)
-	hc := make([]float64, n)
-	sc := make([]float64, n)
+	// Per-acid ΔH and ΔS parts at sn-1/3 (outer) and at sn-2 (the
+	// cis-monoene term depends on the position).
+	hcOuter, scOuter := make([]float64, n), make([]float64, n)
+	hcSN2, scSN2 := make([]float64, n), make([]float64, n)
 	var outside []string
+	sat := chain{kind: kindSaturated}
+	part := func(s structure, carbons int) (h, sj float64) {
+		g := k.OddChainKJ*s.groups[2] + k.CisMonoeneSN2KJ*s.groups[3] + k.CisMonoeneOuterKJ*s.groups[4] +
+			k.TransMonoeneKJ*s.groups[5] + k.DieneKJ*s.groups[6] + k.TrieneKJ*s.groups[7]
+		return k.EnthalpyPerCarbonKJ*float64(carbons) + g,
+			k.EntropyPerCarbonJ*float64(carbons) + 1000*g/coef.CompensationTemperatureK
+	}
 	for i, a := range comp.Acids {
 		c := chainOf(a)
 		chains[i] = c
 		if !c.inFit {
 			outside = append(outside, a.ID)
 		}
-		s := structureOf(c, chain{kind: kindSaturated}, chain{kind: kindSaturated})
-		g := k.OddChainKJ*s.groups[1] + k.CisMonoeneKJ*s.groups[2] + k.TransMonoeneKJ*s.groups[3] +
-			k.DieneKJ*s.groups[4] + k.TrieneKJ*s.groups[5]
-		hc[i] = k.EnthalpyPerCarbonKJ*float64(c.carbons) + g
-		sc[i] = k.EntropyPerCarbonJ*float64(c.carbons) + 1000*g/coef.CompensationTemperatureK
+		hcOuter[i], scOuter[i] = part(structureOf(c, sat, sat), c.carbons)
+		hcSN2[i], scSN2[i] = part(structureOf(sat, c, sat), c.carbons)
 	}
-	// Mismatch g(d) = 1 − exp(−(d/w)²) for every chain-length difference.
+	// Mismatch terms 1 − exp(−(d/w)²) for every chain-length difference.
 	maxC := 0
 	for _, c := range chains {
 		maxC = max(maxC, c.carbons)
 	}
-	gm := make([]float64, maxC+1)
-	for d := range gm {
-		q := float64(d) / coef.MismatchWidthCarbons
-		gm[d] = 1 - math.Exp(-q*q)
+	gx, gy := make([]float64, maxC+1), make([]float64, maxC+1)
+	for d := range gx {
+		gx[d] = mismatch(float64(d), coef.SN2MismatchWidthCarbons)
+		gy[d] = mismatch(float64(d), coef.OuterMismatchWidthCarbons)
 	}
 	overrides := resolveOverrides(comp.Acids, opt.Polymorph)
 
-	outsideMass := f.build(prepared{chains: chains, hc: hc, sc: sc, gm: gm, k: k,
+	outsideMass := f.build(prepared{chains: chains, hcOuter: hcOuter, scOuter: scOuter, hcSN2: hcSN2, scSN2: scSN2, gx: gx, gy: gy, k: k,
 		thetaK: coef.CompensationTemperatureK, overrides: overrides})
 	if len(outside) > 0 {
 		f.warnings = append(f.warnings, chem.Warning{Code: WarnOutsideFit, Message: fmt.Sprintf(

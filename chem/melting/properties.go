@@ -67,9 +67,11 @@ func (p Polymorph) index() int { return int(p) - 1 }
 //	Tm = 1000·ΔH/ΔS                               (K)
 //
 // where n is the total acyl carbon number and the structural terms gk are:
-// the chain-length mismatch f_xy (see [Coefficients.MismatchWidthCarbons]),
-// the number of odd-numbered chains, and the numbers of cis-monoene
-// (cis-18:1 type), trans-monoene (trans-18:1 type), diene (18:2 type) and
+// the two chain-length mismatch terms f_x and f_y (see
+// [Coefficients.SN2MismatchWidthCarbons]), the number of odd-numbered
+// chains, the numbers of cis-monoene (cis-18:1 type) chains at sn-2 and at
+// sn-1/3 (counted apart, our extension: see CisMonoeneOuterKJ), and the
+// numbers of trans-monoene (trans-18:1 type), diene (18:2 type) and
 // triene-or-higher (18:3 type) chains. Each structural term changes ΔS by its
 // ΔH change divided by one compensation temperature θ, because the data have
 // melting points but almost no enthalpies for mixed TAGs and so cannot
@@ -84,12 +86,25 @@ type PolymorphCoefficients struct {
 	EntropyPerCarbonJ float64
 	// EntropyInterceptJ is s0, J/(mol·K).
 	EntropyInterceptJ float64
-	// MismatchKJ multiplies the chain-length mismatch term f_xy, kJ/mol.
-	MismatchKJ float64
+	// SN2MismatchKJ multiplies f_x, the mismatch between the sn-2 chain and
+	// the shorter outer chain, kJ/mol.
+	SN2MismatchKJ float64
+	// OuterMismatchKJ multiplies f_y, the mismatch between the two outer
+	// chains, kJ/mol.
+	OuterMismatchKJ float64
 	// OddChainKJ is per odd-numbered chain, kJ/mol.
 	OddChainKJ float64
-	// CisMonoeneKJ is per cis-monoene chain (oleic type), kJ/mol.
-	CisMonoeneKJ float64
+	// CisMonoeneSN2KJ is per cis-monoene chain (oleic type) at sn-2, kJ/mol.
+	CisMonoeneSN2KJ float64
+	// CisMonoeneOuterKJ is per cis-monoene chain at sn-1 or sn-3, kJ/mol.
+	// Wesdorp counts unsaturated chains without regard to position; we
+	// count the cis-monoenes by position because their position changes
+	// how the TAG packs — POP and SOS (oleic at sn-2) reach a β form,
+	// OOP (oleic at sn-1/3) only β′ (Zhang et al., JAOCS 84, 2007) — and
+	// because one term linear in the number of oleic chains cannot fit the
+	// measured POP/POS/SOS/SOA melting points and triolein together (see
+	// testdata/melting/fit_coefficients.json).
+	CisMonoeneOuterKJ float64
 	// TransMonoeneKJ is per trans-monoene chain (elaidic type), kJ/mol.
 	TransMonoeneKJ float64
 	// DieneKJ is per diene chain (linoleic type), kJ/mol.
@@ -107,12 +122,19 @@ type Coefficients struct {
 	// CompensationTemperatureK is θ: each structural term changes ΔS by its
 	// ΔH change (in J/mol) divided by θ.
 	CompensationTemperatureK float64
-	// MismatchWidthCarbons is w in the mismatch term
-	// f_xy = [1 − exp(−(x/w)²)] + [1 − exp(−(y/w)²)], where x is the sn-2
-	// chain length minus the shorter outer chain and y the difference of the
-	// two outer chains, in carbons. The Gaussian form is ours; Wesdorp's
-	// exact mismatch function was not available to us.
-	MismatchWidthCarbons float64
+	// SN2MismatchWidthCarbons is w_x in f_x = 1 − exp(−(x/w_x)²), where x
+	// is the sn-2 chain length minus the shorter outer chain, in carbons.
+	SN2MismatchWidthCarbons float64
+	// OuterMismatchWidthCarbons is w_y in f_y = 1 − exp(−(y/w_y)²), where y
+	// is the difference of the two outer chains, in carbons.
+	//
+	// Wesdorp's correlation has separate exponential terms in x and y, each
+	// with its own width (see testdata/melting/SOURCES.md); the Gaussian
+	// form of each term is ours, as his exact function was not available to
+	// us. Separate terms matter: a long unsaturated sn-2 chain between
+	// shorter saturated ones (POP, x = 2) packs much better than two unequal
+	// outer chains (POS, y = 2), which one shared term could not express.
+	OuterMismatchWidthCarbons float64
 }
 
 // For returns the coefficients of one polymorph.
@@ -183,13 +205,13 @@ func chainOf(a *chem.FattyAcid) chain {
 // structure holds the correlation's inputs for one TAG.
 type structure struct {
 	n      float64    // total acyl carbons
-	x, y   int        // mismatch in carbons (see MismatchWidthCarbons)
-	groups [6]float64 // f_xy, odd chains, cis, trans, diene, triene
+	x, y   int        // mismatch in carbons (see SN2MismatchWidthCarbons)
+	groups [8]float64 // f_x, f_y, odd chains, cis at sn-2, cis at sn-1/3, trans, diene, triene
 }
 
 // structureOf builds the inputs for the TAG sn1/sn2/sn3 (sn-1 and sn-3 are
-// interchangeable). The mismatch term itself is filled by evaluate, which
-// knows w.
+// interchangeable). The mismatch terms themselves are filled by evaluate,
+// which knows the widths.
 func structureOf(sn1, sn2, sn3 chain) structure {
 	var s structure
 	s.n = float64(sn1.carbons + sn2.carbons + sn3.carbons)
@@ -199,28 +221,33 @@ func structureOf(sn1, sn2, sn3 chain) structure {
 	}
 	s.x = sn2.carbons - short
 	s.y = long - short
-	for _, c := range [3]chain{sn1, sn2, sn3} {
+	for pos, c := range [3]chain{sn1, sn2, sn3} {
 		if c.carbons%2 == 1 {
-			s.groups[1]++
+			s.groups[2]++
 		}
 		switch c.kind {
 		case kindCisMonoene:
-			s.groups[2]++
+			if pos == 1 {
+				s.groups[3]++
+			} else {
+				s.groups[4]++
+			}
 		case kindTransMonoene:
-			s.groups[3]++
-		case kindDiene:
-			s.groups[4]++
-		case kindTriene:
 			s.groups[5]++
+		case kindDiene:
+			s.groups[6]++
+		case kindTriene:
+			s.groups[7]++
 		}
 	}
 	return s
 }
 
-// mismatch is f_xy = [1 − exp(−(x/w)²)] + [1 − exp(−(y/w)²)].
-func mismatch(x, y int, w float64) float64 {
-	fx, fy := float64(x)/w, float64(y)/w
-	return (1 - math.Exp(-fx*fx)) + (1 - math.Exp(-fy*fy))
+// mismatch is one mismatch term, 1 − exp(−(d/w)²) for a difference of d
+// carbons.
+func mismatch(d, w float64) float64 {
+	q := d / w
+	return 1 - math.Exp(-q*q)
 }
 
 // evaluate returns ΔH (kJ/mol) and ΔS (J/(mol·K)) of fusion from the
@@ -228,9 +255,10 @@ func mismatch(x, y int, w float64) float64 {
 func (c *Coefficients) evaluate(p Polymorph, s structure) (dh, ds float64) {
 	k := &c.Polymorphs[p.index()]
 	g := s.groups
-	g[0] = mismatch(s.x, s.y, c.MismatchWidthCarbons)
-	terms := k.MismatchKJ*g[0] + k.OddChainKJ*g[1] + k.CisMonoeneKJ*g[2] +
-		k.TransMonoeneKJ*g[3] + k.DieneKJ*g[4] + k.TrieneKJ*g[5]
+	g[0] = mismatch(float64(s.x), c.SN2MismatchWidthCarbons)
+	g[1] = mismatch(float64(s.y), c.OuterMismatchWidthCarbons)
+	terms := k.SN2MismatchKJ*g[0] + k.OuterMismatchKJ*g[1] + k.OddChainKJ*g[2] + k.CisMonoeneSN2KJ*g[3] +
+		k.CisMonoeneOuterKJ*g[4] + k.TransMonoeneKJ*g[5] + k.DieneKJ*g[6] + k.TrieneKJ*g[7]
 	dh = k.EnthalpyPerCarbonKJ*s.n + k.EnthalpyInterceptKJ + terms
 	ds = k.EntropyPerCarbonJ*s.n + k.EntropyInterceptJ + 1000*terms/c.CompensationTemperatureK
 	return dh, ds
