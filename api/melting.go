@@ -46,11 +46,20 @@ type MeltingModel struct {
 	Calibration          *MeltingCalibration `json:"calibration,omitempty"`
 }
 
+// TAGEntry is one TAG species of a fat given by its TAG composition.
+type TAGEntry struct {
+	SN1         string  `json:"sn1"`
+	SN2         string  `json:"sn2"`
+	SN3         string  `json:"sn3"`
+	MolePercent float64 `json:"mole_percent"`
+}
+
 // MeltingRequest is the body of POST /v1/melting (and, with measured
 // required, of POST /v1/melting/calibrate).
 type MeltingRequest struct {
-	Profile    *ProfileBody `json:"profile"`
-	Sn2Profile *ProfileBody `json:"sn2_profile,omitempty"`
+	Profile          *ProfileBody `json:"profile"`
+	Triacylglycerols []TAGEntry   `json:"triacylglycerols,omitempty"`
+	Sn2Profile       *ProfileBody `json:"sn2_profile,omitempty"`
 	MeltingModel
 	Sn2EnrichmentFactors []EnrichmentFactor   `json:"sn2_enrichment_factors,omitempty"`
 	TemperaturesC        []float64            `json:"temperatures_c,omitempty"`
@@ -273,29 +282,102 @@ func fromMeltingError(e melting.CalibrationError) MeltingError {
 	return out
 }
 
+// toTAGAmounts resolves the labels of an explicit TAG composition.
+func toTAGAmounts(cat *chem.Catalogue, tags []TAGEntry) ([]melting.TAGAmount, error) {
+	out := make([]melting.TAGAmount, len(tags))
+	bad := NewError(KindUnprocessable, "the TAG composition has labels that name no known acid")
+	for i, t := range tags {
+		out[i].MolePercent = t.MolePercent
+		for _, pos := range []struct {
+			label string
+			dst   **chem.FattyAcid
+			field string
+		}{{t.SN1, &out[i].Outer1, "sn1"}, {t.SN2, &out[i].Middle, "sn2"}, {t.SN3, &out[i].Outer2, "sn3"}} {
+			r, err := cat.Resolve(pos.label)
+			switch {
+			case err != nil:
+				ce, _ := chem.AsError(err)
+				bad.Fields = append(bad.Fields, FieldError{Pointer: Pointer("triacylglycerols", i, pos.field), Reason: ce.Message, Suggestions: ce.Suggestions})
+			case r.Acid == nil:
+				bad.Fields = append(bad.Fields, FieldError{Pointer: Pointer("triacylglycerols", i, pos.field), Reason: "an unidentified acid cannot be part of a TAG species"})
+			default:
+				*pos.dst = r.Acid
+			}
+		}
+	}
+	if len(bad.Fields) > 0 {
+		return nil, bad
+	}
+	return out, nil
+}
+
+// prepareFat builds the fat from a profile or from an explicit TAG
+// composition, whichever the request gives.
+func prepareFat(cat *chem.Catalogue, body *MeltingRequest) (*melting.Fat, []WarningBody, error) {
+	if (body.Profile == nil) == (body.Triacylglycerols == nil) {
+		return nil, nil, NewError(KindMalformed, "give the fat as a profile or as triacylglycerols",
+			FieldError{Pointer: "", Reason: "exactly one of profile and triacylglycerols is required"})
+	}
+	if body.Triacylglycerols != nil {
+		if body.Distribution != "" || body.Sn2Estimate != "" || body.Sn2Profile != nil || body.Sn2EnrichmentFactors != nil {
+			return nil, nil, NewError(KindMalformed, "distribution and sn-2 options do not apply to a TAG composition",
+				FieldError{Pointer: "/triacylglycerols", Reason: "not with distribution, sn2_estimate, sn2_profile or sn2_enrichment_factors"})
+		}
+		tags, err := toTAGAmounts(cat, body.Triacylglycerols)
+		if err != nil {
+			return nil, nil, err
+		}
+		opt, warnings, err := toMeltingOptions(cat, body, nil, "")
+		if err != nil {
+			return nil, nil, err
+		}
+		// The request gave no distribution or sn-2 options (checked above);
+		// the defaults toMeltingOptions filled in do not apply.
+		opt.Composition.Distribution, opt.Composition.SN2 = 0, 0
+		fat, err := melting.PrepareTAGs(tags, opt, chem.DefaultSumTolerance)
+		if err != nil {
+			return nil, nil, mapErrorPaths(err, tagsPath)
+		}
+		return fat, warnings, nil
+	}
+	p, err := toChemProfile(cat, body.Profile, "profile")
+	if err != nil {
+		return nil, nil, err
+	}
+	opt, warnings, err := toMeltingOptions(cat, body, p, "")
+	if err != nil {
+		return nil, nil, err
+	}
+	fat, err := melting.Prepare(p, opt)
+	if err != nil {
+		return nil, nil, mapErrorPaths(err, meltingPath)
+	}
+	return fat, append(toWarnings(p.Warnings, "profile"), warnings...), nil
+}
+
+// tagsPath maps the explicit-TAG paths ("tags", i, …) onto the request.
+func tagsPath(path []any) []any {
+	if len(path) > 0 && path[0] == "tags" {
+		return append([]any{"triacylglycerols"}, path[1:]...)
+	}
+	return meltingPath(path)
+}
+
 func handleMelting(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		var body MeltingRequest
 		if err := decodeStrict(c, &body); err != nil {
 			return err
 		}
-		p, err := toChemProfile(cat, body.Profile, "profile")
+		fat, warnings, err := prepareFat(cat, &body)
 		if err != nil {
 			return err
-		}
-		opt, warnings, err := toMeltingOptions(cat, &body, p, "")
-		if err != nil {
-			return err
-		}
-		fat, err := melting.Prepare(p, opt)
-		if err != nil {
-			return mapErrorPaths(err, meltingPath)
 		}
 		res, err := fat.Melt()
 		if err != nil {
 			return mapErrorPaths(err, meltingPath)
 		}
-		out := fromMelting(res, append(toWarnings(p.Warnings, "profile"), warnings...))
+		out := fromMelting(res, warnings)
 		if body.Measured != nil {
 			cmp, err := compareMeasured(fat, res, toMeasurements(body.Measured))
 			if err != nil {
@@ -340,6 +422,10 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		if body.Measured == nil {
 			return NewError(KindMalformed, "measurements are required", FieldError{Pointer: "/measured", Reason: "required"})
+		}
+		if body.Triacylglycerols != nil {
+			return NewError(KindMalformed, "calibration takes a fatty-acid profile",
+				FieldError{Pointer: "/triacylglycerols", Reason: "give the fat as profile"})
 		}
 		p, err := toChemProfile(cat, body.Profile, "profile")
 		if err != nil {
@@ -391,7 +477,7 @@ func fromMelting(r *melting.Result, warnings []WarningBody) MeltingResponse {
 				SlipThresholdPercent: r.Parameters.Calibration.SlipThresholdPercent,
 			},
 		},
-		Warnings: append(warnings, toWarnings(mapWarningPaths(r.Warnings, meltingPath))...),
+		Warnings: append(warnings, toWarnings(mapWarningPaths(r.Warnings, tagsPath))...),
 	}
 	if r.SlipMeltingPointDefined {
 		out.SlipMeltingPointC = optional(r.SlipMeltingPointC)

@@ -165,3 +165,48 @@ func TestMeltingEnrichmentFactors(t *testing.T) {
 	require.Equal(t, "enrichment_factors", *out.Parameters.Sn2Estimate)
 	require.NotEqual(t, out.ClearPointC, in.ClearPointC)
 }
+
+// TestMeltingExplicitTAGs: a fat given as TAG species. A palm-like mix of
+// its main species (invented shares for the test) melts, the species come
+// back as given, and the distribution is reported as explicit.
+func TestMeltingExplicitTAGs(t *testing.T) {
+	got := melt(t, `{"triacylglycerols":[
+	  {"sn1":"16:0","sn2":"18:1 c9","sn3":"16:0","mole_percent":30},
+	  {"sn1":"16:0","sn2":"18:1 c9","sn3":"18:1 c9","mole_percent":25},
+	  {"sn1":"18:1 c9","sn2":"18:1 c9","sn3":"16:0","mole_percent":5},
+	  {"sn1":"16:0","sn2":"18:2 c9,c12","sn3":"18:1 c9","mole_percent":10},
+	  {"sn1":"16:0","sn2":"16:0","sn3":"16:0","mole_percent":5},
+	  {"sn1":"18:1 c9","sn2":"18:1 c9","sn3":"18:1 c9","mole_percent":15},
+	  {"sn1":"16:0","sn2":"18:1 c9","sn3":"18:0","mole_percent":10}],"temperatures_c":[5,15,25,35]}`)
+	require.Equal(t, "explicit_tags", got.Parameters.Distribution)
+	require.Nil(t, got.Parameters.Sn2Estimate)
+	requireNonIncreasing(t, got.Curve)
+	require.Equal(t, 6, got.SpeciesCount) // POO and OOP are one species
+	var codes []string
+	for _, w := range got.Warnings {
+		codes = append(codes, w.Code)
+	}
+	require.Contains(t, codes, "duplicate_acid_summed")
+
+	app := newApp(t)
+	for _, c := range []struct {
+		body    string
+		status  int
+		pointer string
+	}{
+		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"oleik","sn3":"16:0","mole_percent":100}]}`, 422, "/triacylglycerols/0/sn2"},
+		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":90}]}`, 422, "/triacylglycerols"},
+		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"profile":` + palmLike + `}`, 400, ""},
+		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"distribution":"full_random"}`, 400, "/triacylglycerols"},
+		{`{"temperatures_c":[20]}`, 400, ""},
+	} {
+		rec := do(t, app, call{method: http.MethodPost, path: "/v1/melting", body: c.body})
+		require.Equal(t, c.status, rec.Code, rec.Body.String())
+		p := decode[api.Problem](t, rec)
+		var ptrs []string
+		for _, e := range p.Errors {
+			ptrs = append(ptrs, e.Pointer)
+		}
+		require.Contains(t, ptrs, c.pointer, rec.Body.String())
+	}
+}

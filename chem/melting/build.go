@@ -44,63 +44,208 @@ const (
 // poolBin accumulates the species pooled into one (family, 2 K bin).
 type poolBin struct{ z, zm, ztm, zdh float64 }
 
-// build enumerates the species (in the order of enumerate), gives each its
+// builder accumulates species into the mixture: it gives each species its
 // melting properties and family (for the SolidSolutionFamilies model; the
-// other models put every species in one family), keeps those at or above
-// the pooling floor and pools the rest into 2 K melting-point bins within
-// their family, and
-// lays the mixture out family by family (families in key order cis, trans,
-// band; in a family the kept species in enumeration order, then the pooled
-// bins in ascending order). The species themselves are not stored: only the
-// largest ones for the result (Composition rebuilds the full list on
-// request). It returns the mass of species with acids outside the fit.
-func (f *Fat) build(pr prepared) (outsideMass float64) {
+// other models put every species in one family), keeps those at or above the
+// pooling floor and pools the rest into 2 K melting-point bins within their
+// family.
+type builder struct {
+	f        *Fat
+	pr       *prepared
+	acidMass []float64
+	famCode  []int
+	grouped  bool
+	floor    float64
+	// ΔS parts of the mismatch terms per unit f_x and f_y.
+	sn2MismatchS, outerMismatchS float64
+	kept                         []keptSpecies
+	binSlots                     [][]int32 // per dense family: bin → 1 + index into bins
+	bins                         []poolBin
+	pooledMass, outsideMass      float64
+}
+
+func (f *Fat) newBuilder(pr *prepared) *builder {
 	comp := f.composition
-	a, b := comp.SN13, comp.SN2
 	n := len(comp.Acids)
-	floor := f.opt.Composition.PoolFloorMoleFraction
+	bd := &builder{f: f, pr: pr, acidMass: make([]float64, n), famCode: make([]int, n),
+		floor: f.opt.Composition.PoolFloorMoleFraction, bins: make([]poolBin, 0, 256)}
 	if f.opt.Composition.NoPooling {
-		floor = 0
+		bd.floor = 0
 	}
-	shift := f.opt.Calibration.TemperatureShiftK
-	acidMass := make([]float64, n)
 	maxC := 0
 	for i, ac := range comp.Acids {
-		acidMass[i] = ac.MolarMass()
+		bd.acidMass[i] = ac.MolarMass()
 		maxC = max(maxC, pr.chains[i].carbons)
 	}
 	// Dense family key (cis·4 + trans)·nb + band (see familyOf), a sum of
-	// per-chain codes plus the band.
+	// per-chain codes plus the band. Only the families model uses families;
+	// the other models pool by melting point alone, as one family.
 	nb := (3*maxC+familyBandCarbons/2)/familyBandCarbons + 1
-	famCode := make([]int, n)
-	// Only the families model uses families; the other models pool by
-	// melting point alone, as one family.
-	grouped := f.opt.SolidModel == SolidSolutionFamilies
-	if !grouped {
+	bd.grouped = f.opt.SolidModel == SolidSolutionFamilies
+	if !bd.grouped {
 		nb = 1
 	}
-	for i := range famCode {
-		if !grouped {
+	for i := range bd.famCode {
+		if !bd.grouped {
 			break
 		}
 		switch pr.chains[i].kind {
 		case kindSaturated:
 		case kindTransMonoene:
-			famCode[i] = nb
+			bd.famCode[i] = nb
 		default:
-			famCode[i] = 4 * nb
+			bd.famCode[i] = 4 * nb
 		}
 	}
-	kc := &pr.k
-	// ΔS parts of the mismatch terms per unit f_x and f_y.
-	sn2MismatchS := 1000 * kc.SN2MismatchKJ / pr.thetaK
-	outerMismatchS := 1000 * kc.OuterMismatchKJ / pr.thetaK
+	bd.sn2MismatchS = 1000 * pr.k.SN2MismatchKJ / pr.thetaK
+	bd.outerMismatchS = 1000 * pr.k.OuterMismatchKJ / pr.thetaK
+	bd.binSlots = make([][]int32, 16*nb)
+	f.main = make([]mainEntry, 0, f.opt.MainSpecies+1)
+	return bd
+}
+
+// outerPart holds what a species' properties owe to its two outer chains,
+// computed once per outer pair.
+type outerPart struct {
+	i, l       int
+	short      int
+	h, s, mass float64
+	fam        int
+	inFit      bool
+	carbons    int
+}
+
+func (bd *builder) outer(i, l int) outerPart {
+	pr, kc := bd.pr, &bd.pr.k
+	ci, cl := pr.chains[i].carbons, pr.chains[l].carbons
+	short, long := min(ci, cl), max(ci, cl)
+	gy := pr.gy[long-short]
+	return outerPart{
+		i: i, l: l, short: short, carbons: ci + cl,
+		h:     kc.EnthalpyInterceptKJ + pr.hcOuter[i] + pr.hcOuter[l] + kc.OuterMismatchKJ*gy,
+		s:     kc.EntropyInterceptJ + pr.scOuter[i] + pr.scOuter[l] + bd.outerMismatchS*gy,
+		mass:  chem.GlycerolBackboneIncrement + bd.acidMass[i] + bd.acidMass[l],
+		fam:   bd.famCode[i] + bd.famCode[l],
+		inFit: pr.chains[i].inFit && pr.chains[l].inFit,
+	}
+}
+
+// add takes one species: the outer pair op, middle acid j, mole fraction z.
+func (bd *builder) add(op outerPart, j int, z float64) {
+	f, pr, kc := bd.f, bd.pr, &bd.pr.k
+	i, l := op.i, op.l
+	cj := pr.chains[j].carbons
+	x := cj - op.short
+	if x < 0 {
+		x = -x
+	}
+	gx := pr.gx[x]
+	h := op.h + pr.hcSN2[j] + kc.SN2MismatchKJ*gx
+	s := op.s + pr.scSN2[j] + bd.sn2MismatchS*gx
+	mass := op.mass + bd.acidMass[j]
+	var tm float64
+	if h < floorEnthalpyKJ || s <= 0 {
+		tm, h = floorMeltingPointK, floorEnthalpyKJ
+	} else if tm = 1000 * h / s; tm < floorMeltingPointK {
+		tm = floorMeltingPointK
+	}
+	measured := false
+	if pr.overrides != nil {
+		n := len(pr.chains)
+		if oi := pr.overrides[(i*n+j)*n+l]; oi > 0 {
+			m := measuredOverrides[oi-1]
+			if !math.IsNaN(m.meltingPointK) {
+				tm = m.meltingPointK
+			}
+			if !math.IsNaN(m.enthalpyKJ) {
+				h = m.enthalpyKJ
+			}
+			measured = true
+			f.overrides++
+		}
+	}
+	f.speciesCount++
+	zm := z * mass
+	f.totalMass += zm
+	if !op.inFit || !pr.chains[j].inFit {
+		bd.outsideMass += zm
+	}
+	fam := 0
+	if bd.grouped {
+		fam = op.fam + bd.famCode[j] + (op.carbons+cj+familyBandCarbons/2)/familyBandCarbons
+	}
 	nMain := f.opt.MainSpecies
-	f.main = make([]mainEntry, 0, nMain+1)
-	var kept []keptSpecies
-	binSlots := make([][]int32, 16*nb) // per dense family: bin → 1 + index into bins
-	bins := make([]poolBin, 0, 256)
-	var pooledMass float64
+	if len(f.main) < nMain || zm > f.main[len(f.main)-1].sp.z*f.main[len(f.main)-1].sp.mass {
+		f.keepMain(mainEntry{tagSpecies{z, mass, [3]int32{int32(i), int32(j), int32(l)}}, tm, measured}, nMain)
+	}
+	if z >= bd.floor {
+		bd.kept = append(bd.kept, keptSpecies{z, mass, tm, h, int32(fam)})
+		return
+	}
+	// Bins from floorMeltingPointK up; melting points above
+	// maxBinnedMeltingPointK share the last bin.
+	bi := min(int((tm-floorMeltingPointK)/poolBinK), poolBins-1)
+	slots := bd.binSlots[fam]
+	if slots == nil {
+		slots = make([]int32, poolBins)
+		bd.binSlots[fam] = slots
+	}
+	if slots[bi] == 0 {
+		bd.bins = append(bd.bins, poolBin{})
+		slots[bi] = int32(len(bd.bins))
+	}
+	bb := &bd.bins[slots[bi]-1]
+	bb.z += z
+	bb.zm += zm
+	bb.ztm += z * tm
+	bb.zdh += z * h
+	bd.pooledMass += zm
+	f.pooledSpecies++
+}
+
+// finish lays the mixture out family by family (families in key order cis,
+// trans, band; in a family the kept species in the order added, then the
+// pooled bins in ascending order) and returns the mass of species with acids
+// outside the fit. The species themselves are not stored: only the largest
+// ones for the result.
+func (bd *builder) finish() (outsideMass float64) {
+	f := bd.f
+	shift := f.opt.Calibration.TemperatureShiftK
+	kept := bd.kept
+	// A stable sort keeps the kept species in the order added within a family.
+	slices.SortStableFunc(kept, func(p, q keptSpecies) int { return int(p.fam) - int(q.fam) })
+	nc := len(kept) + len(bd.bins)
+	m := &Mixture{z: make([]float64, 0, nc), mass: make([]float64, 0, nc), a: make([]float64, 0, nc),
+		c: make([]float64, 0, nc), tm: make([]float64, 0, nc)}
+	ki := 0
+	for fam := range bd.binSlots {
+		first := true
+		for ; ki < len(kept) && int(kept[ki].fam) == fam; ki++ {
+			sp := &kept[ki]
+			m.add(sp.z, sp.mass, sp.tmK+shift, sp.dhKJ, first)
+			first = false
+		}
+		for _, slot := range bd.binSlots[fam] {
+			if slot > 0 {
+				bb := &bd.bins[slot-1]
+				m.add(bb.z, bb.zm/bb.z, bb.ztm/bb.z+shift, bb.zdh/bb.z, first)
+				first = false
+			}
+		}
+	}
+	m.endFamilies()
+	f.mixture = m
+	f.pooledMassPercent = 100 * bd.pooledMass / f.totalMass
+	return bd.outsideMass
+}
+
+// build enumerates the species of the fat's positional pools (outer pairs
+// i ≤ l, middle j, in the order of enumerate) into the mixture.
+func (f *Fat) build(pr prepared) (outsideMass float64) {
+	comp := f.composition
+	a, b := comp.SN13, comp.SN2
+	n := len(comp.Acids)
+	bd := f.newBuilder(&pr)
 	for i := 0; i < n; i++ {
 		if a[i] == 0 {
 			continue
@@ -113,114 +258,16 @@ func (f *Fat) build(pr prepared) (outsideMass float64) {
 			if i != l {
 				outer *= 2
 			}
-			ci, cl := pr.chains[i].carbons, pr.chains[l].carbons
-			short, long := min(ci, cl), max(ci, cl)
-			// The parts that do not depend on the middle chain.
-			gy := pr.gy[long-short]
-			hOuter := kc.EnthalpyInterceptKJ + pr.hcOuter[i] + pr.hcOuter[l] + kc.OuterMismatchKJ*gy
-			sOuter := kc.EntropyInterceptJ + pr.scOuter[i] + pr.scOuter[l] + outerMismatchS*gy
-			massOuter := chem.GlycerolBackboneIncrement + acidMass[i] + acidMass[l]
-			famOuter := famCode[i] + famCode[l]
-			inFitOuter := pr.chains[i].inFit && pr.chains[l].inFit
+			op := bd.outer(i, l)
 			for j := 0; j < n; j++ {
 				if b[j] == 0 {
 					continue
 				}
-				z := outer * b[j]
-				mass := massOuter + acidMass[j]
-				cj := pr.chains[j].carbons
-				x := cj - short
-				if x < 0 {
-					x = -x
-				}
-				gx := pr.gx[x]
-				h := hOuter + pr.hcSN2[j] + kc.SN2MismatchKJ*gx
-				s := sOuter + pr.scSN2[j] + sn2MismatchS*gx
-				var tm float64
-				if h < floorEnthalpyKJ || s <= 0 {
-					tm, h = floorMeltingPointK, floorEnthalpyKJ
-				} else if tm = 1000 * h / s; tm < floorMeltingPointK {
-					tm = floorMeltingPointK
-				}
-				measured := false
-				if pr.overrides != nil {
-					if oi := pr.overrides[(i*n+j)*n+l]; oi > 0 {
-						m := measuredOverrides[oi-1]
-						if !math.IsNaN(m.meltingPointK) {
-							tm = m.meltingPointK
-						}
-						if !math.IsNaN(m.enthalpyKJ) {
-							h = m.enthalpyKJ
-						}
-						measured = true
-						f.overrides++
-					}
-				}
-				f.speciesCount++
-				zm := z * mass
-				f.totalMass += zm
-				if !inFitOuter || !pr.chains[j].inFit {
-					outsideMass += zm
-				}
-				fam := 0
-				if grouped {
-					fam = famOuter + famCode[j] + (ci+cj+cl+familyBandCarbons/2)/familyBandCarbons
-				}
-				if len(f.main) < nMain || zm > f.main[len(f.main)-1].sp.z*f.main[len(f.main)-1].sp.mass {
-					f.keepMain(mainEntry{tagSpecies{z, mass, [3]int32{int32(i), int32(j), int32(l)}}, tm, measured}, nMain)
-				}
-				if z >= floor {
-					kept = append(kept, keptSpecies{z, mass, tm, h, int32(fam)})
-					continue
-				}
-				// Bins from floorMeltingPointK up; melting points above
-				// maxBinnedMeltingPointK share the last bin.
-				bi := min(int((tm-floorMeltingPointK)/poolBinK), poolBins-1)
-				slots := binSlots[fam]
-				if slots == nil {
-					slots = make([]int32, poolBins)
-					binSlots[fam] = slots
-				}
-				if slots[bi] == 0 {
-					bins = append(bins, poolBin{})
-					slots[bi] = int32(len(bins))
-				}
-				bb := &bins[slots[bi]-1]
-				bb.z += z
-				bb.zm += zm
-				bb.ztm += z * tm
-				bb.zdh += z * h
-				pooledMass += zm
-				f.pooledSpecies++
+				bd.add(op, j, outer*b[j])
 			}
 		}
 	}
-	// Lay out the mixture family by family (a stable sort keeps the kept
-	// species in enumeration order within a family).
-	slices.SortStableFunc(kept, func(p, q keptSpecies) int { return int(p.fam) - int(q.fam) })
-	nc := len(kept) + len(bins)
-	m := &Mixture{z: make([]float64, 0, nc), mass: make([]float64, 0, nc), a: make([]float64, 0, nc),
-		c: make([]float64, 0, nc), tm: make([]float64, 0, nc)}
-	ki := 0
-	for fam := range binSlots {
-		first := true
-		for ; ki < len(kept) && int(kept[ki].fam) == fam; ki++ {
-			sp := &kept[ki]
-			m.add(sp.z, sp.mass, sp.tmK+shift, sp.dhKJ, first)
-			first = false
-		}
-		for _, slot := range binSlots[fam] {
-			if slot > 0 {
-				bb := &bins[slot-1]
-				m.add(bb.z, bb.zm/bb.z, bb.ztm/bb.z+shift, bb.zdh/bb.z, first)
-				first = false
-			}
-		}
-	}
-	m.endFamilies()
-	f.mixture = m
-	f.pooledMassPercent = 100 * pooledMass / f.totalMass
-	return outsideMass
+	return bd.finish()
 }
 
 // keepMain inserts e into the fat's list of largest species (by mass,

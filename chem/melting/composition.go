@@ -20,6 +20,10 @@ const (
 	// fraction: P(i,j,k) = x_i·x_j·x_k. It fits chemically interesterified
 	// fats and is a fair default for tallow (DOMAIN §9).
 	FullRandom
+	// ExplicitTAGs marks a fat given as a list of TAG species
+	// ([PrepareTAGs]) rather than built from a profile. It is not an option
+	// of Options.Composition.
+	ExplicitTAGs
 )
 
 // DefaultDistribution is [Positional]: natural vegetable fats are not
@@ -33,6 +37,8 @@ func (d Distribution) String() string {
 		return "sn13_random_sn2_random"
 	case FullRandom:
 		return "full_random"
+	case ExplicitTAGs:
+		return "explicit_tags"
 	default:
 		return "unknown"
 	}

@@ -220,12 +220,19 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	}
 	f := &Fat{opt: opt, composition: comp, full: &lazyComposition{}}
 	f.warnings = append(f.warnings, comp.Warnings...)
+	pr, outside := prepareAcids(comp.Acids, opt.Polymorph)
+	outsideMass := f.build(pr)
+	f.finishWarnings(outside, outsideMass)
+	return f, nil
+}
 
-	// Per-acid parts of the correlation: ΔH and ΔS are sums over chains
-	// plus the intercepts and the mismatch term.
+// prepareAcids computes the per-acid parts of the correlation for
+// polymorph p: ΔH and ΔS are sums over chains plus the intercepts and the
+// mismatch term. It also returns the acids outside the fitted data.
+func prepareAcids(acids []*chem.FattyAcid, p Polymorph) (prepared, []string) {
 	coef := fittedCoefficients
-	k := coef.For(opt.Polymorph)
-	n := len(comp.Acids)
+	k := coef.For(p)
+	n := len(acids)
 	chains := make([]chain, n)
 	// Per-acid ΔH and ΔS parts at sn-1/3 (outer) and at sn-2 (the
 	// cis-monoene term depends on the position).
@@ -239,7 +246,7 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 		return k.EnthalpyPerCarbonKJ*float64(carbons) + g,
 			k.EntropyPerCarbonJ*float64(carbons) + 1000*g/coef.CompensationTemperatureK
 	}
-	for i, a := range comp.Acids {
+	for i, a := range acids {
 		c := chainOf(a)
 		chains[i] = c
 		if !c.inFit {
@@ -258,10 +265,13 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 		gx[d] = mismatch(float64(d), coef.SN2MismatchWidthCarbons)
 		gy[d] = mismatch(float64(d), coef.OuterMismatchWidthCarbons)
 	}
-	overrides := resolveOverrides(comp.Acids, opt.Polymorph)
+	return prepared{chains: chains, hcOuter: hcOuter, scOuter: scOuter, hcSN2: hcSN2, scSN2: scSN2, gx: gx, gy: gy, k: k,
+		thetaK: coef.CompensationTemperatureK, overrides: resolveOverrides(acids, p)}, outside
+}
 
-	outsideMass := f.build(prepared{chains: chains, hcOuter: hcOuter, scOuter: scOuter, hcSN2: hcSN2, scSN2: scSN2, gx: gx, gy: gy, k: k,
-		thetaK: coef.CompensationTemperatureK, overrides: overrides})
+// finishWarnings adds the warnings about acids outside the fit and pooling.
+func (f *Fat) finishWarnings(outside []string, outsideMass float64) {
+	opt := f.opt
 	if len(outside) > 0 {
 		f.warnings = append(f.warnings, chem.Warning{Code: WarnOutsideFit, Message: fmt.Sprintf(
 			"%s %s outside the pure-TAG data the property correlation was fitted to; the species containing "+
@@ -275,7 +285,6 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 			f.pooledMassPercent, f.mixture.Len()-(f.speciesCount-f.pooledSpecies), poolBinK),
 			Path: []any{"composition", "pool_floor_mole_fraction"}})
 	}
-	return f, nil
 }
 
 func plural(n int, one, many string) string {
@@ -626,8 +635,11 @@ func (f *Fat) assumptions() []string {
 }
 
 func distributionWords(c CompositionOptions) string {
-	if c.Distribution == FullRandom {
+	switch c.Distribution {
+	case FullRandom:
 		return "full random distribution"
+	case ExplicitTAGs:
+		return "TAG composition as given"
 	}
 	return "1,3-random-2-random distribution, sn-2 by the " + strings.ReplaceAll(c.SN2.String(), "_", " ")
 }

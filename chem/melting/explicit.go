@@ -1,0 +1,136 @@
+package melting
+
+import (
+	"fmt"
+	"math"
+
+	"lipidsvc/chem"
+)
+
+// exactSum is the distance from 100 below which a sum of shares counts as
+// exactly 100.
+const exactSum = 1e-9
+
+// TAGAmount is one species of a fat given as its TAG composition (for
+// example from an HPLC or GC-TAG analysis). Outer1 and Outer2 are the sn-1
+// and sn-3 acids in either order; Middle is the sn-2 acid.
+type TAGAmount struct {
+	Outer1, Middle, Outer2 *chem.FattyAcid
+	// MolePercent is the species' share of all TAG molecules, mol %.
+	MolePercent float64
+}
+
+// PrepareTAGs is [Prepare] for a fat given as TAG species instead of a
+// fatty-acid profile: the species are taken as given (the same species
+// listed twice, in either outer order, is summed), and the percentages,
+// which must sum to 100 within tol percentage points, are scaled to 100 with
+// a warning when they do not sum exactly. Options.Composition's distribution
+// and sn-2 fields do not apply and must be left at zero. Errors are
+// KindInvalid *chem.Error values with paths ("tags", i, …).
+func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
+	if opt.Composition.Distribution != 0 || opt.Composition.SN2 != 0 || opt.Composition.SN2Profile != nil ||
+		opt.Composition.EnrichmentFactors != nil {
+		return nil, chem.Errorf(chem.KindInvalid, "a TAG composition takes no distribution or sn-2 options").
+			WithField("not with an explicit TAG composition", "composition")
+	}
+	opt = opt.withDefaults()
+	if err := opt.validate(); err != nil {
+		return nil, err
+	}
+	bad := chem.Errorf(chem.KindInvalid, "the TAG composition cannot be used")
+	if len(list) == 0 {
+		bad.WithField("at least one species is required", "tags")
+	}
+	var sum float64
+	for i, t := range list {
+		if t.Outer1 == nil || t.Middle == nil || t.Outer2 == nil {
+			bad.WithField("three acids are required", "tags", i)
+		}
+		if math.IsNaN(t.MolePercent) || math.IsInf(t.MolePercent, 0) || t.MolePercent < 0 || t.MolePercent > 100 {
+			bad.WithField("must be a finite number from 0 to 100", "tags", i, "mole_percent")
+			continue
+		}
+		sum += t.MolePercent
+	}
+	if len(bad.Fields) == 0 {
+		switch {
+		case !(sum > 0):
+			bad.WithField("no species with a positive share", "tags")
+		case math.Abs(sum-100) > tol+exactSum:
+			bad.WithField(fmt.Sprintf("the shares sum to %.4g, outside 100 ± %.4g", sum, tol), "tags")
+		}
+	}
+	if len(bad.Fields) > 0 {
+		if len(bad.Fields) == 1 {
+			bad.Message = bad.Fields[0].Reason
+		}
+		return nil, bad
+	}
+
+	// The acids in order of first appearance, and the species by index.
+	index := map[*chem.FattyAcid]int{}
+	var acids []*chem.FattyAcid
+	idx := func(a *chem.FattyAcid) int {
+		if k, ok := index[a]; ok {
+			return k
+		}
+		index[a] = len(acids)
+		acids = append(acids, a)
+		return len(acids) - 1
+	}
+	type key struct{ o1, m, o2 int }
+	order := []key{}
+	z := map[key]float64{}
+	var warnings []chem.Warning
+	for i, t := range list {
+		o1, m, o2 := idx(t.Outer1), idx(t.Middle), idx(t.Outer2)
+		if o1 > o2 {
+			o1, o2 = o2, o1
+		}
+		k := key{o1, m, o2}
+		if _, seen := z[k]; seen {
+			warnings = append(warnings, chem.Warning{Code: chem.WarnDuplicateAcid,
+				Message: fmt.Sprintf("species %s/%s/%s appears more than once; the shares were summed",
+					t.Outer1.ID, t.Middle.ID, t.Outer2.ID), Path: []any{"tags", i}})
+		} else {
+			order = append(order, k)
+		}
+		z[k] += t.MolePercent / sum
+	}
+	if math.Abs(sum-100) > exactSum {
+		warnings = append(warnings, chem.Warning{Code: chem.WarnNormalised,
+			Message: fmt.Sprintf("the TAG shares summed to %.6g; they were scaled to 100", sum), Path: []any{"tags"}})
+	}
+
+	// Positional pools of the composition, for reporting.
+	n := len(acids)
+	comp := &Composition{Acids: acids, Total: make([]float64, n), SN2: make([]float64, n), SN13: make([]float64, n),
+		Distribution: ExplicitTAGs}
+	for _, k := range order {
+		comp.SN2[k.m] += z[k]
+		comp.SN13[k.o1] += z[k] / 2
+		comp.SN13[k.o2] += z[k] / 2
+	}
+	for i := range comp.Total {
+		comp.Total[i] = (2*comp.SN13[i] + comp.SN2[i]) / 3
+	}
+	opt.Composition.Distribution = ExplicitTAGs
+	f := &Fat{opt: opt, composition: comp, full: &lazyComposition{}, warnings: warnings}
+	pr, outside := prepareAcids(acids, opt.Polymorph)
+	bd := f.newBuilder(&pr)
+	species := make([]tagSpecies, 0, len(order))
+	for _, k := range order {
+		bd.add(bd.outer(k.o1, k.o2), k.m, z[k])
+		mass := chem.GlycerolBackboneIncrement + acids[k.o1].MolarMass() + acids[k.m].MolarMass() + acids[k.o2].MolarMass()
+		species = append(species, tagSpecies{z: z[k], mass: mass, idx: [3]int32{int32(k.o1), int32(k.m), int32(k.o2)}})
+	}
+	outsideMass := bd.finish()
+	f.finishWarnings(outside, outsideMass)
+	// The species list is the one given, not an enumeration of the pools.
+	f.full.once.Do(func() {
+		c := *comp
+		c.Species = c.materialize(species)
+		f.full.c = &c
+	})
+	return f, nil
+}
