@@ -99,7 +99,7 @@ type MeltingParameters struct {
 // MeltingResponse is the answer of POST /v1/melting.
 type MeltingResponse struct {
 	SlipMeltingPointC    *float64          `json:"slip_melting_point_c"`
-	ClearPointC          float64           `json:"clear_point_c"`
+	ClearPointC          *float64          `json:"clear_point_c"`
 	SolidFatAt37CPercent float64           `json:"solid_fat_at_37c_percent"`
 	Curve                []SFCPoint        `json:"curve"`
 	ReportingPoints      []SFCPoint        `json:"reporting_points"`
@@ -141,14 +141,20 @@ var (
 	}
 )
 
-// meltingPathRenames maps the melting package's field paths onto the
-// request body.
+// meltingPath maps the melting package's field paths onto the request
+// body; paths to settings the API does not expose (the pooling floor) map to
+// none.
 func meltingPath(path []any) []any {
 	if len(path) >= 2 && path[0] == "composition" {
 		switch path[1] {
 		case "distribution", "sn2_estimate", "sn2_profile", "sn2_enrichment_factors":
 			return path[1:]
+		case "pool_floor_mole_fraction":
+			return nil
 		}
+	}
+	if len(path) >= 1 && path[0] == "acids" {
+		return append([]any{"profile"}, path...)
 	}
 	if len(path) >= 1 && path[0] == "measurements" {
 		return []any{"measured"}
@@ -360,6 +366,9 @@ func tagsPath(path []any) []any {
 	if len(path) > 0 && path[0] == "tags" {
 		return append([]any{"triacylglycerols"}, path[1:]...)
 	}
+	if len(path) > 0 && path[0] == "acids" {
+		return []any{"triacylglycerols"}
+	}
 	return meltingPath(path)
 }
 
@@ -377,7 +386,11 @@ func handleMelting(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		if err != nil {
 			return mapErrorPaths(err, meltingPath)
 		}
-		out := fromMelting(res, warnings)
+		paths := meltingPath
+		if body.Triacylglycerols != nil {
+			paths = tagsPath
+		}
+		out := fromMelting(res, warnings, paths)
 		if body.Measured != nil {
 			cmp, err := compareMeasured(fat, res, toMeasurements(body.Measured))
 			if err != nil {
@@ -405,11 +418,11 @@ func compareMeasured(fat *melting.Fat, res *melting.Result, m melting.Measuremen
 			ss += d * d
 			worst = math.Max(worst, math.Abs(d))
 		}
-		out.SFCRMSErrorPercent = optional(math.Sqrt(ss / float64(len(m.SFC))))
-		out.SFCMaxAbsErrorPercent = optional(worst)
+		out.SFCRMSErrorPercent = finiteOrNil(math.Sqrt(ss / float64(len(m.SFC))))
+		out.SFCMaxAbsErrorPercent = finiteOrNil(worst)
 	}
 	if m.HasSlipMeltingPoint && res.SlipMeltingPointDefined {
-		out.SlipErrorK = optional(res.SlipMeltingPointC - m.SlipMeltingPointC)
+		out.SlipErrorK = finiteOrNil(res.SlipMeltingPointC - m.SlipMeltingPointC)
 	}
 	return out, nil
 }
@@ -426,6 +439,21 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		if body.Triacylglycerols != nil {
 			return NewError(KindMalformed, "calibration takes a fatty-acid profile",
 				FieldError{Pointer: "/triacylglycerols", Reason: "give the fat as profile"})
+		}
+		// Options that shape only a curve, or a calibration to start from,
+		// do not apply to fitting one: refuse them rather than ignore them.
+		var fields []FieldError
+		if body.TemperaturesC != nil {
+			fields = append(fields, FieldError{Pointer: "/temperatures_c", Reason: "not used by a calibration"})
+		}
+		if body.MainSpeciesCount != nil {
+			fields = append(fields, FieldError{Pointer: "/main_species_count", Reason: "not used by a calibration"})
+		}
+		if body.Calibration != nil {
+			fields = append(fields, FieldError{Pointer: "/calibration", Reason: "a calibration is fitted from scratch; leave it out"})
+		}
+		if len(fields) > 0 {
+			return NewError(KindMalformed, "the request has options a calibration does not use", fields...)
 		}
 		p, err := toChemProfile(cat, body.Profile, "profile")
 		if err != nil {
@@ -456,9 +484,10 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	}
 }
 
-func fromMelting(r *melting.Result, warnings []WarningBody) MeltingResponse {
+// fromMelting converts a result; paths maps the melting package's paths
+// onto the request (a profile's or an explicit TAG list's).
+func fromMelting(r *melting.Result, warnings []WarningBody, paths func([]any) []any) MeltingResponse {
 	out := MeltingResponse{
-		ClearPointC:          r.ClearPointC,
 		SolidFatAt37CPercent: r.SFCAt37CPercent,
 		SpeciesCount:         r.SpeciesCount,
 		ComponentCount:       r.ComponentCount,
@@ -477,10 +506,16 @@ func fromMelting(r *melting.Result, warnings []WarningBody) MeltingResponse {
 				SlipThresholdPercent: r.Parameters.Calibration.SlipThresholdPercent,
 			},
 		},
-		Warnings: append(warnings, toWarnings(mapWarningPaths(r.Warnings, tagsPath))...),
+		Warnings: append(warnings, toWarnings(mapWarningPaths(r.Warnings, paths))...),
 	}
 	if r.SlipMeltingPointDefined {
 		out.SlipMeltingPointC = optional(r.SlipMeltingPointC)
+	}
+	if r.ClearPointC >= melting.MinTemperatureC {
+		out.ClearPointC = optional(r.ClearPointC)
+	} else {
+		out.Warnings = append(out.Warnings, WarningBody{Code: "clear_point_below_range", Message: fmt.Sprintf(
+			"the fat is still liquid at %g °C, the bottom of the model's range; no clear point is reported", melting.MinTemperatureC)})
 	}
 	if r.Parameters.SN2Estimate != 0 {
 		s := r.Parameters.SN2Estimate.String()

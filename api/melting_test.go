@@ -46,7 +46,8 @@ func TestMeltingPublishedRanges(t *testing.T) {
 	require.NotNil(t, palm.SlipMeltingPointC)
 	require.GreaterOrEqual(t, *palm.SlipMeltingPointC, 33.0)
 	require.LessOrEqual(t, *palm.SlipMeltingPointC, 39.0)
-	require.GreaterOrEqual(t, palm.ClearPointC, *palm.SlipMeltingPointC)
+	require.NotNil(t, palm.ClearPointC)
+	require.GreaterOrEqual(t, *palm.ClearPointC, *palm.SlipMeltingPointC)
 	requireNonIncreasing(t, palm.Curve)
 	require.Len(t, palm.Curve, 61+3) // 0–60 °C in 1 °C steps plus 21.1, 26.7 and 33.3
 	require.Len(t, palm.ReportingPoints, 10)
@@ -163,7 +164,7 @@ func TestMeltingEnrichmentFactors(t *testing.T) {
 	out := melt(t, `{"profile":`+palmLike+`,"sn2_enrichment_factors":[{"acid":"18:1 c9","factor":1},{"acid":"18:2 c9,c12","factor":1}]}`)
 	in := melt(t, `{"profile":`+palmLike+`,"sn2_enrichment_factors":[{"acid":"16:0","factor":1},{"acid":"18:1 c9","factor":1},{"acid":"18:2 c9,c12","factor":1}]}`)
 	require.Equal(t, "enrichment_factors", *out.Parameters.Sn2Estimate)
-	require.NotEqual(t, out.ClearPointC, in.ClearPointC)
+	require.NotEqual(t, *out.ClearPointC, *in.ClearPointC)
 }
 
 // TestMeltingExplicitTAGs: a fat given as TAG species. A palm-like mix of
@@ -209,4 +210,74 @@ func TestMeltingExplicitTAGs(t *testing.T) {
 		}
 		require.Contains(t, ptrs, c.pointer, rec.Body.String())
 	}
+}
+
+// TestMeltingTraceAcids: acids whose TAG shares underflow to zero (the
+// traces a hardening forecast leaves) neither hang nor break the answer.
+func TestMeltingTraceAcids(t *testing.T) {
+	trace := `{"acids":[{"acid":"16:0","percent":50},{"acid":"18:1 c9","percent":50},{"acid":"18:3 c9,c12,c15","percent":1e-120}]}`
+	for _, model := range []string{"solid_solution_families", "multiple_pure_solids", "ideal_solid_solution"} {
+		got := melt(t, `{"profile":`+trace+`,"solid_model":"`+model+`"}`)
+		requireNonIncreasing(t, got.Curve)
+		rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate",
+			body: `{"profile":` + trace + `,"solid_model":"` + model + `","measured":{"slip_melting_point_c":30}}`})
+		require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	}
+	// A hardened product, traces and all, goes back into /v1/melting, and a
+	// slip target works with every catalyst and solid model.
+	for _, preset := range []string{"copper", "nickel_non_selective", "palladium"} {
+		got := forecast(t, `{"profile":`+soyFeed+`,"target":{"slip_melting_point_c":36},"catalyst":{"preset":"`+preset+`"},"melting":{"solid_model":"multiple_pure_solids"},"path_points":2}`)
+		require.InDelta(t, 36, got.MeltingTarget.SlipMeltingPointC, 0.05, preset)
+		prof, err := json.Marshal(got.ProductProfile)
+		require.NoError(t, err)
+		m := melt(t, `{"profile":`+string(prof)+`,"solid_model":"multiple_pure_solids"}`)
+		require.InDelta(t, 36, *m.SlipMeltingPointC, 0.05, preset)
+	}
+}
+
+// TestMeltingWarningPointers: warnings point into the request or nowhere.
+func TestMeltingWarningPointers(t *testing.T) {
+	got := melt(t, `{"profile":`+palmLike+`}`)
+	var saw bool
+	for _, w := range got.Warnings {
+		switch w.Code {
+		case "outside_property_fit":
+			saw = true
+			require.Equal(t, "/profile/acids", w.Pointer)
+		case "species_pooled":
+			require.Empty(t, w.Pointer)
+		}
+	}
+	require.True(t, saw, "palm-like has 20:0 and 20:1, outside the fitted data: %v", got.Warnings)
+}
+
+func TestCalibrationFromSFCPoints(t *testing.T) {
+	// Invented measurements for the test (not published data): the model
+	// shifted to follow them must fit better than unshifted.
+	body := `{"profile":` + palmLike + `,"sn2_estimate":"palm_rule","measured":{"sfc_points":[
+	  {"temperature_c":10,"solid_fat_percent":50},{"temperature_c":20,"solid_fat_percent":26},
+	  {"temperature_c":30,"solid_fat_percent":9},{"temperature_c":35,"solid_fat_percent":5}],"slip_melting_point_c":36}}`
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate", body: body})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got := decode[api.CalibrateResponse](t, rec)
+	require.Equal(t, 4, got.Before.SFCPoints)
+	require.LessOrEqual(t, *got.After.SFCRMSErrorPercent, *got.Before.SFCRMSErrorPercent)
+	require.Greater(t, got.Calibration.SlipThresholdPercent, 0.0)
+
+	// Options that do not apply to a calibration are refused, not ignored.
+	for _, extra := range []string{`"temperatures_c":[20]`, `"main_species_count":3`, `"calibration":{"temperature_shift_k":1}`} {
+		rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate",
+			body: `{"profile":` + palmLike + `,` + extra + `,"measured":{"slip_melting_point_c":36}}`})
+		require.Equal(t, http.StatusBadRequest, rec.Code, extra)
+	}
+}
+
+// TestForecastSlipTargetUsesSn2Pools: with a measured sn-2 composition the
+// melting model uses the hardened sn-2 pool, which changes the answer.
+func TestForecastSlipTargetUsesSn2Pools(t *testing.T) {
+	sn2 := `{"acids":[{"acid":"18:1 c9","percent":25},{"acid":"18:2 c9,c12","percent":65},{"acid":"18:3 c9,c12,c15","percent":10}]}`
+	with := forecast(t, `{"profile":`+soyFeed+`,"sn2_profile":`+sn2+`,"target":{"slip_melting_point_c":36},"catalyst":{"preset":"nickel_selective"},"path_points":2}`)
+	without := forecast(t, `{"profile":`+soyFeed+`,"target":{"slip_melting_point_c":36},"catalyst":{"preset":"nickel_selective"},"path_points":2}`)
+	require.InDelta(t, 36, with.MeltingTarget.SlipMeltingPointC, 0.05)
+	require.NotEqual(t, with.IodineValue, without.IodineValue)
 }

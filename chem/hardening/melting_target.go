@@ -35,6 +35,9 @@ type SlipTargetResult struct {
 	FeedSlipMeltingPointC float64
 	// Evaluations counts the forecasts made during the search.
 	Evaluations int
+	// MeltingWarnings are what the melting model assumed for the product
+	// (pooling, acids outside its fitted data).
+	MeltingWarnings []chem.Warning
 }
 
 // ForecastToSlipMeltingPoint hardens req.Feed with req.Catalyst until the
@@ -58,8 +61,19 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 	if req.Feed == nil {
 		return nil, chem.Errorf(chem.KindInvalid, "the feed is missing").WithField("required", "feed")
 	}
-	slip := func(p *chem.Profile) (float64, error) {
-		t, defined, err := melting.SlipMeltingPointC(p, mopt)
+	// With an sn-2 composition the melting model uses the (hardened) sn-2
+	// pool instead of estimating one, since hardening barely moves acids
+	// between positions.
+	optFor := func(sn2 *chem.Profile) melting.Options {
+		o := mopt
+		if sn2 != nil {
+			o.Composition.SN2 = melting.SN2Supplied
+			o.Composition.SN2Profile = sn2
+		}
+		return o
+	}
+	slip := func(p, sn2 *chem.Profile) (float64, error) {
+		t, defined, err := melting.SlipMeltingPointC(p, optFor(sn2))
 		if err != nil {
 			return 0, err
 		}
@@ -69,7 +83,7 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 		return t, nil
 	}
 	out := &SlipTargetResult{TargetSlipMeltingPointC: targetC}
-	feedSlip, err := slip(req.Feed)
+	feedSlip, err := slip(req.Feed, req.Sn2)
 	if err != nil {
 		return nil, err
 	}
@@ -99,7 +113,7 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 			return nil, 0, err
 		}
 		out.Evaluations++
-		s, err := slip(res.Product)
+		s, err := slip(res.Product, res.Sn2Product)
 		return res, s, err
 	}
 	_, hardest, err := at(lowestSearchIodineValue, MinPathPoints)
@@ -129,6 +143,9 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 				return nil, err
 			}
 			out.ForecastResult, out.SlipMeltingPointC = final, fs
+			if fat, err := melting.Prepare(final.Product, optFor(final.Sn2Product)); err == nil {
+				out.MeltingWarnings = fat.Warnings()
+			}
 			if math.Abs(fs-targetC) > slipToleranceK {
 				// The slip melting point steps across the target between
 				// neighbouring iodine values (pooling of minor species):

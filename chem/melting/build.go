@@ -131,7 +131,13 @@ func (bd *builder) outer(i, l int) outerPart {
 }
 
 // add takes one species: the outer pair op, middle acid j, mole fraction z.
+// A species whose mole fraction underflows to zero (trace acids, such as the
+// last traces of linolenic acid in a hardened oil) is left out: it carries
+// no mass and would make a pooled bin 0/0.
 func (bd *builder) add(op outerPart, j int, z float64) {
+	if !(z > 0) {
+		return
+	}
 	f, pr, kc := bd.f, bd.pr, &bd.pr.k
 	i, l := op.i, op.l
 	cj := pr.chains[j].carbons

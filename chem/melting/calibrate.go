@@ -111,15 +111,20 @@ func Calibrate(ctx context.Context, p *chem.Profile, opt Options, m Measurements
 	if rep.After, err = c.errors(cal); err != nil {
 		return nil, err
 	}
-	if !(len(m.SFC) > 0 && m.HasSlipMeltingPoint) {
-		cal.SlipThresholdPercent = 0 // not calibrated: Options.SlipThresholdPercent stays in force
+	// The threshold is always returned (fitted, or the one the shift was
+	// fitted with), so the calibration means the same wherever it is used.
+	if len(m.SFC) > 0 && !(rep.After.SFCRMSErrorPercent < rep.Before.SFCRMSErrorPercent) {
+		rep.Warnings = append(rep.Warnings, limitWarning(
+			"no temperature shift improves the match with the measured SFC points; the model cannot follow them", "temperature_shift_k"))
 	}
 	rep.Calibration = cal
 	return rep, nil
 }
 
-func limitWarning(msg, field string) chem.Warning {
-	return chem.Warning{Code: WarnCalibrationLimit, Message: msg, Path: []any{"calibration", field}}
+// limitWarning concerns a fitted calibration parameter, part of the answer
+// rather than of the request, so it carries no path.
+func limitWarning(msg, _ string) chem.Warning {
+	return chem.Warning{Code: WarnCalibrationLimit, Message: msg}
 }
 
 func (m Measurements) validate() error {
@@ -180,7 +185,8 @@ func (c *calibrator) fitShiftToSFC() (float64, error) {
 		if err != nil {
 			return 0, err
 		}
-		if v < bestV {
+		// Ties (measurements no shift can follow) keep the shift nearest 0.
+		if v < bestV || (v == bestV && math.Abs(s) < math.Abs(best)) {
 			best, bestV = s, v
 		}
 	}

@@ -1,6 +1,7 @@
 package melting
 
 import (
+	"math"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -73,4 +74,24 @@ func TestExplicitTAGsRejects(t *testing.T) {
 	require.Contains(t, codes, chem.WarnDuplicateAcid)
 	require.Contains(t, codes, chem.WarnNormalised)
 	require.Len(t, f.Composition().Species, 2)
+}
+
+// TestTraceAcidsUnderflow: an acid whose TAG shares underflow to zero is
+// left out instead of making a pooled component 0/0 (which once turned the
+// clear point into NaN and the slip search into an endless loop).
+func TestTraceAcidsUnderflow(t *testing.T) {
+	cat := chem.NewCatalogue()
+	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
+		{Label: "16:0", Percent: 50}, {Label: "18:1 c9", Percent: 50}, {Label: "18:3 c9,c12,c15", Percent: 1e-120},
+	}, 0)
+	require.NoError(t, err)
+	for _, model := range []SolidModel{SolidSolutionFamilies, MultiplePureSolids, IdealSolidSolution} {
+		r, err := Melt(p, Options{SolidModel: model})
+		require.NoError(t, err, model)
+		require.False(t, math.IsNaN(r.ClearPointC), model)
+		require.False(t, math.IsNaN(r.SlipMeltingPointC), model)
+		for _, pt := range r.Curve {
+			require.False(t, math.IsNaN(pt.SFCPercent), model)
+		}
+	}
 }

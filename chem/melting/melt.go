@@ -397,6 +397,9 @@ func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float6
 		}
 	}
 	lowK := MinTemperatureC + zeroCelsiusK
+	if math.IsNaN(clear) || math.IsInf(clear, 0) {
+		return 0, false, chem.Errorf(chem.KindNoConvergence, "the clear point could not be determined")
+	}
 	// Bracket [lo, hi] with SFC(lo) ≥ thr > SFC(hi).
 	hi, lo := clear, math.NaN()
 	var flo, fhi float64 = math.NaN(), -thr
@@ -415,7 +418,9 @@ func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float6
 		if len(known) > 0 && known[0].sfc < thr {
 			hi, fhi = known[0].tK, known[0].sfc-thr
 		}
-		for step := 2.0; ; step *= 2 {
+		// The step doubles from 2 K, so the search reaches lowK from any
+		// clear point in well under 64 steps.
+		for step := 2.0; step < 1e6; step *= 2 {
 			t := math.Max(hi-step, lowK)
 			v, err := eval(t)
 			if err != nil {
@@ -429,6 +434,9 @@ func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float6
 			if t <= lowK {
 				return lowK, false, nil
 			}
+		}
+		if math.IsNaN(lo) {
+			return lowK, false, nil
 		}
 	}
 	// Illinois (modified regula falsi) on the monotone, continuous SFC(T).

@@ -445,7 +445,8 @@ func TestCalibrationRecoversShift(t *testing.T) {
 	// 33-39 °C [Codex CXS 210; trade specification].
 	rep, err = Calibrate(context.Background(), p, opt, Measurements{SlipMeltingPointC: 36, HasSlipMeltingPoint: true})
 	require.NoError(t, err)
-	require.Zero(t, rep.Calibration.SlipThresholdPercent)
+	// The threshold the shift was fitted with travels with the calibration.
+	require.Equal(t, DefaultSlipThresholdPercent, rep.Calibration.SlipThresholdPercent)
 	require.InDelta(t, 0, rep.After.SlipErrorK, 1e-3)
 	require.Greater(t, math.Abs(rep.Before.SlipErrorK), math.Abs(rep.After.SlipErrorK))
 	opt.Calibration = rep.Calibration
