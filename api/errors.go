@@ -119,6 +119,9 @@ type Recorder interface {
 	// Rejection counts one request answered with a 4xx problem of the given
 	// problem slug.
 	Rejection(slug string)
+	// SolverIterations records how many iterations (or model evaluations)
+	// an iterative solver of the given kind needed.
+	SolverIterations(kind string, n int)
 }
 
 // NopRecorder is a Recorder that records nothing.
@@ -129,6 +132,9 @@ func (NopRecorder) Calculation(string) {}
 
 // Rejection implements Recorder.
 func (NopRecorder) Rejection(string) {}
+
+// SolverIterations implements Recorder.
+func (NopRecorder) SolverIterations(string, int) {}
 
 // classify turns any error into an *Error.
 func classify(err error) *Error {

@@ -121,6 +121,7 @@ func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			return mapErrorPaths(err, fitPath)
 		}
 		rec.Calculation("hardening_fit")
+		rec.SolverIterations("hardening_fit", res.Iterations)
 		warnings = append(warnings, toWarnings(mapWarningPaths(res.Warnings, fitPath))...)
 		return respond(c, http.StatusOK, fromFit(res, warnings))
 	}

@@ -269,6 +269,7 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 				return mapErrorPaths(err, func(p []any) []any { return forecastPath(meltingPathUnder(p, "melting")) })
 			}
 			res = st.ForecastResult
+			rec.SolverIterations("slip_melting_point_search", st.Evaluations)
 			res.Warnings = append(res.Warnings, mapWarningPaths(st.MeltingWarnings, func([]any) []any { return nil })...)
 			meltingTarget = &MeltingTargetBody{
 				TargetSlipMeltingPointC: st.TargetSlipMeltingPointC,

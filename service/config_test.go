@@ -73,3 +73,24 @@ func TestRequestIDValidation(t *testing.T) {
 	require.False(t, validRequestID(string(make([]byte, 129))))
 	require.Len(t, newRequestID(), 32)
 }
+
+func TestMetricsRecordDomainEvents(t *testing.T) {
+	m := NewMetrics()
+	m.Calculation("properties")
+	m.Rejection("unprocessable")
+	m.SolverIterations("hardening_fit", 9)
+	m.observe("FOO1", "/v1/properties", 200, time.Millisecond)
+	families, err := m.registry.Gather()
+	require.NoError(t, err)
+	seen := map[string]bool{}
+	for _, f := range families {
+		seen[f.GetName()] = true
+		if f.GetName() == "lipidsvc_http_requests_total" {
+			require.Equal(t, "OTHER", f.GetMetric()[0].GetLabel()[1].GetValue()) // labels sorted: code, method, route
+		}
+	}
+	for _, name := range []string{"lipidsvc_calculations_total", "lipidsvc_rejected_requests_total", "lipidsvc_solver_iterations",
+		"lipidsvc_http_requests_total", "lipidsvc_http_request_duration_seconds", "go_goroutines"} {
+		require.True(t, seen[name], name)
+	}
+}

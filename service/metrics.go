@@ -19,6 +19,7 @@ type Metrics struct {
 	inFlight     prometheus.Gauge
 	calculations *prometheus.CounterVec
 	rejections   *prometheus.CounterVec
+	iterations   *prometheus.HistogramVec
 }
 
 // NewMetrics builds the registry with Go, process and build-info collectors.
@@ -46,18 +47,28 @@ func NewMetrics() *Metrics {
 			Name: "lipidsvc_rejected_requests_total",
 			Help: "Requests answered with a 4xx problem, by problem type.",
 		}, []string{"problem"}),
+		iterations: prometheus.NewHistogramVec(prometheus.HistogramOpts{
+			Name:    "lipidsvc_solver_iterations",
+			Help:    "Iterations (or model evaluations) an iterative solver needed, by solver.",
+			Buckets: []float64{1, 2, 5, 10, 20, 50, 100, 200, 500, 1000},
+		}, []string{"solver"}),
 	}
 	m.registry.MustRegister(
 		collectors.NewGoCollector(),
 		collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}),
 		collectors.NewBuildInfoCollector(),
-		m.requests, m.duration, m.inFlight, m.calculations, m.rejections,
+		m.requests, m.duration, m.inFlight, m.calculations, m.rejections, m.iterations,
 	)
 	return m
 }
 
 // Calculation implements api.Recorder.
 func (m *Metrics) Calculation(kind string) { m.calculations.WithLabelValues(kind).Inc() }
+
+// SolverIterations implements api.Recorder.
+func (m *Metrics) SolverIterations(kind string, n int) {
+	m.iterations.WithLabelValues(kind).Observe(float64(n))
+}
 
 // Rejection implements api.Recorder.
 func (m *Metrics) Rejection(slug string) { m.rejections.WithLabelValues(slug).Inc() }
