@@ -153,8 +153,6 @@ var gasReferenceNames = map[hardening.GasReferenceKind]string{
 	hardening.GasRefCustom:       "custom",
 }
 
-const zeroCelsiusK = 273.15
-
 // toGasReference reads the reference state; a custom one needs temperature
 // and pressure, and only a custom one may carry them.
 func toGasReference(g *GasSupplyBody) (hardening.GasReference, error) {
@@ -172,7 +170,7 @@ func toGasReference(g *GasSupplyBody) (hardening.GasReference, error) {
 		if len(fields) > 0 {
 			return hardening.GasReference{}, NewError(KindMalformed, "a custom gas reference needs a temperature and a pressure", fields...)
 		}
-		ref, err := hardening.CustomGasReference(*g.TemperatureC+zeroCelsiusK, *g.PressureKPa*1000)
+		ref, err := hardening.CustomGasReference(*g.TemperatureC+chem.ZeroCelsiusK, *g.PressureKPa*1000)
 		if err != nil {
 			return ref, NewError(KindUnprocessable, "the custom gas reference state is not physical",
 				FieldError{Pointer: "/gas", Reason: "temperature must be above absolute zero and pressure above zero"})
@@ -324,7 +322,7 @@ func fromGasAmounts(s hardening.HydrogenSupply) GasAmounts {
 func fromGasReference(r hardening.GasReference) GasReferenceBody {
 	return GasReferenceBody{
 		Reference:            gasReferenceNames[r.Kind()],
-		TemperatureC:         r.TemperatureK() - zeroCelsiusK,
+		TemperatureC:         r.TemperatureK() - chem.ZeroCelsiusK,
 		PressureKPa:          r.PressurePa() / 1000,
 		MolarVolumeM3PerKmol: 1000 * r.MolarVolumeM3PerMol(),
 	}

@@ -30,5 +30,8 @@ const (
 	GlycerolBackboneIncrement = MolarMassGlycerol - 3*MolarMassH2O
 )
 
+// ZeroCelsiusK is 0 °C in kelvin (exact, SI).
+const ZeroCelsiusK = 273.15
+
 // GasConstant is the molar gas constant R, J/(mol·K) [CODATA 2018, exact].
 const GasConstant = 8.314462618

@@ -36,9 +36,9 @@ func (b Basis) String() string {
 // stray from 100 and still be normalised rather than rejected.
 const DefaultSumTolerance = 0.5
 
-// exactSum is the distance from 100 below which a sum counts as exactly 100
-// (floating-point noise in the laboratory's export).
-const exactSum = 1e-9
+// SumNoise is the distance from 100 below which a sum of percentages counts
+// as exactly 100 (floating-point noise in a laboratory's export).
+const SumNoise = 1e-9
 
 // maxSuggestedLabels is how many bad labels of one profile get suggestions.
 const maxSuggestedLabels = 10
@@ -147,7 +147,7 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 		}
 		return nil, bad
 	}
-	if dev := math.Abs(p.InputSum - 100); dev > tol+exactSum {
+	if dev := math.Abs(p.InputSum - 100); dev > tol+SumNoise {
 		return nil, Errorf(KindInvalid, "the percentages sum to %.4g, outside 100 ± %.4g", p.InputSum, tol).
 			WithField(fmt.Sprintf("sum %.4g is outside 100 ± %.4g percentage points", p.InputSum, tol), "acids")
 	}
@@ -156,7 +156,7 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 		return nil, Errorf(KindInvalid, "the profile has no identified acid with a positive share").
 			WithField("no identified acid with a positive percent", "acids")
 	}
-	if math.Abs(p.InputSum-100) > exactSum {
+	if math.Abs(p.InputSum-100) > SumNoise {
 		p.Warnings = append(p.Warnings, Warning{WarnNormalised,
 			fmt.Sprintf("the percentages summed to %.6g; they were scaled to 100", p.InputSum), []any{"acids"}})
 	}

@@ -19,8 +19,8 @@ const (
 	// kJPerKWh converts energy: 1 kWh = 3600 kJ (exact).
 	kJPerKWh = 3600.0
 
-	// zeroCelsiusK is 0 °C in kelvin (exact, SI).
-	zeroCelsiusK = 273.15
+	// zeroCelsiusK is 0 °C in kelvin.
+	zeroCelsiusK = chem.ZeroCelsiusK
 )
 
 // HydrogenMolPerTonnePerIodineValue is the amount of C=C double bonds, and so

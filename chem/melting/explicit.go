@@ -7,10 +7,6 @@ import (
 	"lipidsvc/chem"
 )
 
-// exactSum is the distance from 100 below which a sum of shares counts as
-// exactly 100.
-const exactSum = 1e-9
-
 // TAGAmount is one species of a fat given as its TAG composition (for
 // example from an HPLC or GC-TAG analysis). Outer1 and Outer2 are the sn-1
 // and sn-3 acids in either order; Middle is the sn-2 acid.
@@ -56,7 +52,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 		switch {
 		case !(sum > 0):
 			bad.WithField("no species with a positive share", "tags")
-		case math.Abs(sum-100) > tol+exactSum:
+		case math.Abs(sum-100) > tol+chem.SumNoise:
 			bad.WithField(fmt.Sprintf("the shares sum to %.4g, outside 100 ± %.4g", sum, tol), "tags")
 		}
 	}
@@ -97,7 +93,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 		}
 		z[k] += t.MolePercent / sum
 	}
-	if math.Abs(sum-100) > exactSum {
+	if math.Abs(sum-100) > chem.SumNoise {
 		warnings = append(warnings, chem.Warning{Code: chem.WarnNormalised,
 			Message: fmt.Sprintf("the TAG shares summed to %.6g; they were scaled to 100", sum), Path: []any{"tags"}})
 	}

@@ -366,5 +366,5 @@ func findOverride(sn1, sn2, sn3 string, p Polymorph) (measuredOverride, bool) {
 	return measuredOverride{}, false
 }
 
-// zeroCelsiusK is 0 °C in kelvin (exact, SI).
-const zeroCelsiusK = 273.15
+// zeroCelsiusK is 0 °C in kelvin.
+const zeroCelsiusK = chem.ZeroCelsiusK
