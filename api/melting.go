@@ -2,7 +2,6 @@ package api
 
 import (
 	"fmt"
-	"math"
 	"net/http"
 
 	"github.com/labstack/echo/v4"
@@ -279,11 +278,16 @@ func toMeasurements(m *MeltingMeasurements) melting.Measurements {
 	return out
 }
 
-func fromMeltingError(e melting.CalibrationError) MeltingError {
+// fromMeltingError converts a comparison with measurements; the slip error
+// is null without a measured slip melting point or when the model has none.
+func fromMeltingError(e melting.CalibrationError, hasSlip bool) MeltingError {
 	out := MeltingError{SFCPoints: e.SFCPoints}
 	if e.SFCPoints > 0 {
 		out.SFCRMSErrorPercent = finiteOrNil(e.SFCRMSErrorPercent)
 		out.SFCMaxAbsErrorPercent = finiteOrNil(e.SFCMaxAbsErrorPercent)
+	}
+	if hasSlip {
+		out.SlipErrorK = finiteOrNil(e.SlipErrorK)
 	}
 	return out
 }
@@ -392,39 +396,16 @@ func handleMelting(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		out := fromMelting(res, warnings, paths)
 		if body.Measured != nil {
-			cmp, err := compareMeasured(fat, res, toMeasurements(body.Measured))
+			cmp, err := fat.Compare(toMeasurements(body.Measured))
 			if err != nil {
 				return mapErrorPaths(err, meltingPath)
 			}
-			out.Comparison = &cmp
+			e := fromMeltingError(cmp, body.Measured.SlipMeltingPointC != nil)
+			out.Comparison = &e
 		}
 		rec.Calculation("melting")
 		return respond(c, http.StatusOK, out)
 	}
-}
-
-// compareMeasured states the prediction's error against measurements:
-// predicted minus measured.
-func compareMeasured(fat *melting.Fat, res *melting.Result, m melting.Measurements) (MeltingError, error) {
-	out := MeltingError{SFCPoints: len(m.SFC)}
-	if len(m.SFC) > 0 {
-		var ss, worst float64
-		for _, p := range m.SFC {
-			v, err := fat.SolidFatContent(p.TemperatureC)
-			if err != nil {
-				return out, err
-			}
-			d := v - p.SFCPercent
-			ss += d * d
-			worst = math.Max(worst, math.Abs(d))
-		}
-		out.SFCRMSErrorPercent = finiteOrNil(math.Sqrt(ss / float64(len(m.SFC))))
-		out.SFCMaxAbsErrorPercent = finiteOrNil(worst)
-	}
-	if m.HasSlipMeltingPoint && res.SlipMeltingPointDefined {
-		out.SlipErrorK = finiteOrNil(res.SlipMeltingPointC - m.SlipMeltingPointC)
-	}
-	return out, nil
 }
 
 func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
@@ -468,10 +449,8 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			return mapErrorPaths(err, meltingPath)
 		}
 		rec.Calculation("melting_calibration")
-		before, after := fromMeltingError(rep.Before), fromMeltingError(rep.After)
-		if body.Measured.SlipMeltingPointC != nil {
-			before.SlipErrorK, after.SlipErrorK = finiteOrNil(rep.Before.SlipErrorK), finiteOrNil(rep.After.SlipErrorK)
-		}
+		hasSlip := body.Measured.SlipMeltingPointC != nil
+		before, after := fromMeltingError(rep.Before, hasSlip), fromMeltingError(rep.After, hasSlip)
 		return respond(c, http.StatusOK, CalibrateResponse{
 			Calibration: MeltingCalibration{
 				TemperatureShiftK:    rep.Calibration.TemperatureShiftK,

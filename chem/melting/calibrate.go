@@ -297,6 +297,17 @@ func (c *calibrator) errors(cal Calibration) (CalibrationError, error) {
 	return e, nil
 }
 
+// Compare states how the prepared fat, calibration included, matches
+// measurements (predicted minus measured), by the same measures Calibrate
+// reports before and after fitting.
+func (f *Fat) Compare(m Measurements) (CalibrationError, error) {
+	if err := m.validate(); err != nil {
+		return CalibrationError{}, err
+	}
+	c := &calibrator{ctx: context.Background(), f: f, m: m, w: f.mixture.newWorkspace()}
+	return c.errors(Calibration{SlipThresholdPercent: f.opt.slipThreshold()})
+}
+
 // shifted returns a copy of m with every melting point raised by s.
 func (m *Mixture) shifted(s float64) *Mixture {
 	if s == 0 {

@@ -1,6 +1,7 @@
 package melting
 
 import (
+	"context"
 	"math"
 	"testing"
 
@@ -94,4 +95,27 @@ func TestTraceAcidsUnderflow(t *testing.T) {
 			require.False(t, math.IsNaN(pt.SFCPercent), model)
 		}
 	}
+}
+
+// TestCompareMatchesCalibrationReport: a fat prepared with the fitted
+// calibration compares with the measurements exactly as the report's
+// "after" says.
+func TestCompareMatchesCalibrationReport(t *testing.T) {
+	cat := chem.NewCatalogue()
+	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
+		{Label: "16:0", Percent: 44}, {Label: "18:0", Percent: 5}, {Label: "18:1 c9", Percent: 40}, {Label: "18:2 c9,c12", Percent: 11},
+	}, 0)
+	require.NoError(t, err)
+	// Invented measurements for the test, not published data.
+	m := Measurements{SFC: []SFCPoint{{10, 50}, {20, 25}, {30, 8}}, SlipMeltingPointC: 35, HasSlipMeltingPoint: true}
+	rep, err := Calibrate(context.Background(), p, Options{}, m)
+	require.NoError(t, err)
+	f, err := Prepare(p, Options{Calibration: rep.Calibration})
+	require.NoError(t, err)
+	got, err := f.Compare(m)
+	require.NoError(t, err)
+	require.Equal(t, rep.After.SFCPoints, got.SFCPoints)
+	require.InDelta(t, rep.After.SFCRMSErrorPercent, got.SFCRMSErrorPercent, 1e-6)
+	require.InDelta(t, rep.After.SFCMaxAbsErrorPercent, got.SFCMaxAbsErrorPercent, 1e-6)
+	require.InDelta(t, rep.After.SlipErrorK, got.SlipErrorK, 1e-6)
 }
