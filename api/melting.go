@@ -122,21 +122,24 @@ type CalibrateResponse struct {
 	Warnings    []WarningBody      `json:"warnings"`
 }
 
+// The option names of the API. An absent option maps to the zero value,
+// which the melting package reads as its documented default, so defaults
+// live in one place.
 var (
 	polymorphs = map[string]melting.Polymorph{
-		"": melting.DefaultPolymorph, "alpha": melting.Alpha, "beta_prime": melting.BetaPrime, "beta": melting.Beta,
+		"": 0, "alpha": melting.Alpha, "beta_prime": melting.BetaPrime, "beta": melting.Beta,
 	}
 	solidModels = map[string]melting.SolidModel{
-		"":                        melting.DefaultSolidModel,
+		"":                        0,
 		"solid_solution_families": melting.SolidSolutionFamilies,
 		"multiple_pure_solids":    melting.MultiplePureSolids,
 		"ideal_solid_solution":    melting.IdealSolidSolution,
 	}
 	distributions = map[string]melting.Distribution{
-		"": melting.DefaultDistribution, "sn13_random_sn2_random": melting.Positional, "full_random": melting.FullRandom,
+		"": 0, "sn13_random_sn2_random": melting.Positional, "full_random": melting.FullRandom,
 	}
 	sn2Estimates = map[string]melting.SN2Estimate{
-		"": melting.DefaultSN2Estimate, "seed_oil_rule": melting.SN2SeedOil, "palm_rule": melting.SN2Palm,
+		"": 0, "seed_oil_rule": melting.SN2SeedOil, "palm_rule": melting.SN2Palm,
 	}
 )
 
@@ -341,9 +344,6 @@ func prepareFat(cat *chem.Catalogue, body *MeltingRequest) (*melting.Fat, []Warn
 		if err != nil {
 			return nil, nil, err
 		}
-		// The request gave no distribution or sn-2 options (checked above);
-		// the defaults toMeltingOptions filled in do not apply.
-		opt.Composition.Distribution, opt.Composition.SN2 = 0, 0
 		fat, err := melting.PrepareTAGs(tags, opt, chem.DefaultSumTolerance)
 		if err != nil {
 			return nil, nil, mapErrorPaths(err, tagsPath)
