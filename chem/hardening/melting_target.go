@@ -72,18 +72,24 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 		}
 		return o
 	}
-	slip := func(p, sn2 *chem.Profile) (float64, error) {
-		t, defined, err := melting.SlipMeltingPointC(p, optFor(sn2))
+	// slip is the slip melting point of a fat, −Inf when it has none, and
+	// what the melting model assumed for it.
+	slip := func(p, sn2 *chem.Profile) (float64, []chem.Warning, error) {
+		fat, err := melting.Prepare(p, optFor(sn2))
 		if err != nil {
-			return 0, err
+			return 0, nil, err
+		}
+		t, defined, err := fat.SlipMeltingPointC()
+		if err != nil {
+			return 0, nil, err
 		}
 		if !defined {
-			return math.Inf(-1), nil
+			t = math.Inf(-1)
 		}
-		return t, nil
+		return t, fat.Warnings(), nil
 	}
 	out := &SlipTargetResult{TargetSlipMeltingPointC: targetC}
-	feedSlip, err := slip(req.Feed, req.Sn2)
+	feedSlip, _, err := slip(req.Feed, req.Sn2)
 	if err != nil {
 		return nil, err
 	}
@@ -103,20 +109,20 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 	}
 
 	// at forecasts the product at a final iodine value and returns its slip
-	// melting point.
-	at := func(iv float64, points int) (*ForecastResult, float64, error) {
+	// melting point and the melting model's warnings.
+	at := func(iv float64, points int) (*ForecastResult, float64, []chem.Warning, error) {
 		r := req
 		r.Target = FinalIodineValue(iv)
 		r.PathPoints = points
 		res, err := Forecast(ctx, cat, r)
 		if err != nil {
-			return nil, 0, err
+			return nil, 0, nil, err
 		}
 		out.Evaluations++
-		s, err := slip(res.Product, res.Sn2Product)
-		return res, s, err
+		s, w, err := slip(res.Product, res.Sn2Product)
+		return res, s, w, err
 	}
-	_, hardest, err := at(lowestSearchIodineValue, MinPathPoints)
+	_, hardest, _, err := at(lowestSearchIodineValue, MinPathPoints)
 	if err != nil {
 		return nil, err
 	}
@@ -133,19 +139,16 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 			return nil, err
 		}
 		mid := (lo + hi) / 2
-		_, s, err := at(mid, MinPathPoints)
+		_, s, _, err := at(mid, MinPathPoints)
 		if err != nil {
 			return nil, err
 		}
 		if math.Abs(s-targetC) <= slipToleranceK || hi-lo < 1e-9 {
-			final, fs, err := at(mid, req.PathPoints)
+			final, fs, warnings, err := at(mid, req.PathPoints)
 			if err != nil {
 				return nil, err
 			}
-			out.ForecastResult, out.SlipMeltingPointC = final, fs
-			if fat, err := melting.Prepare(final.Product, optFor(final.Sn2Product)); err == nil {
-				out.MeltingWarnings = fat.Warnings()
-			}
+			out.ForecastResult, out.SlipMeltingPointC, out.MeltingWarnings = final, fs, warnings
 			if math.Abs(fs-targetC) > slipToleranceK {
 				// The slip melting point steps across the target between
 				// neighbouring iodine values (pooling of minor species):
