@@ -34,16 +34,30 @@ func LoadSpec(ctx context.Context, raw []byte) (*openapi3.T, error) {
 	return doc, nil
 }
 
-// echoToOpenAPIPath turns an echo route template (/v1/x/:id) into the
-// OpenAPI form (/v1/x/{id}).
-func echoToOpenAPIPath(p string) string {
+// openAPIToEchoPath turns an OpenAPI path (/v1/x/{id}) into the form of
+// echo's route templates (/v1/x/:id).
+func openAPIToEchoPath(p string) string {
 	parts := strings.Split(p, "/")
 	for i, s := range parts {
-		if strings.HasPrefix(s, ":") {
-			parts[i] = "{" + s[1:] + "}"
+		if strings.HasPrefix(s, "{") && strings.HasSuffix(s, "}") {
+			parts[i] = ":" + s[1:len(s)-1]
 		}
 	}
 	return strings.Join(parts, "/")
+}
+
+// operationRoutes indexes every documented operation by echo route template
+// and method, built once so that a request only does a map lookup.
+func operationRoutes(doc *openapi3.T) map[string]*routers.Route {
+	out := map[string]*routers.Route{}
+	for path, item := range doc.Paths.Map() {
+		for method, op := range item.Operations() {
+			out[method+" "+openAPIToEchoPath(path)] = &routers.Route{
+				Spec: doc, Path: path, PathItem: item, Method: method, Operation: op,
+			}
+		}
+	}
+	return out
 }
 
 // validateRequests checks each request against the operation echo routed it
@@ -55,20 +69,16 @@ func validateRequests(doc *openapi3.T) echo.MiddlewareFunc {
 		SkipSettingDefaults: true,
 		AuthenticationFunc:  openapi3filter.NoopAuthenticationFunc,
 	}
+	routes := operationRoutes(doc)
 	return func(next echo.HandlerFunc) echo.HandlerFunc {
 		return func(c echo.Context) error {
-			path := echoToOpenAPIPath(c.Path())
-			item := doc.Paths.Value(path)
-			if item == nil {
-				return next(c)
-			}
 			req := c.Request()
-			op := item.GetOperation(req.Method)
-			if op == nil {
-				return next(c)
+			route := routes[req.Method+" "+c.Path()]
+			if route == nil {
+				return next(c) // undocumented: routing answers 404 or 405
 			}
 			var body []byte
-			if op.RequestBody != nil {
+			if route.Operation.RequestBody != nil {
 				if err := checkMediaType(req); err != nil {
 					return err
 				}
@@ -77,7 +87,7 @@ func validateRequests(doc *openapi3.T) echo.MiddlewareFunc {
 				if err != nil {
 					var mbe *http.MaxBytesError
 					if errors.As(err, &mbe) {
-						return api.NewError(api.KindTooLarge, fmt.Sprintf("the request body exceeds the limit of %d bytes", mbe.Limit))
+						return err // the error handler answers 413
 					}
 					return api.NewError(api.KindMalformed, "the request body could not be read")
 				}
@@ -88,9 +98,7 @@ func validateRequests(doc *openapi3.T) echo.MiddlewareFunc {
 			}
 			input := &openapi3filter.RequestValidationInput{
 				Request: req,
-				Route: &routers.Route{
-					Spec: doc, Path: path, PathItem: item, Method: req.Method, Operation: op,
-				},
+				Route:   route,
 				Options: opts,
 			}
 			if err := openapi3filter.ValidateRequest(req.Context(), input); err != nil {
