@@ -122,3 +122,15 @@ func checkDuplicateKeys(body []byte) error {
 	}
 	return walk(nil)
 }
+
+// enumValue reads an enumerated field through its name table; an unknown
+// name is a malformed request pointing at the field. (The OpenAPI schema
+// rejects it first; this keeps handlers safe without the validator.)
+func enumValue[T any](m map[string]T, s, pointer, reason string) (T, error) {
+	v, ok := m[s]
+	if !ok {
+		var zero T
+		return zero, NewError(KindMalformed, "unknown value", FieldError{Pointer: pointer, Reason: reason})
+	}
+	return v, nil
+}

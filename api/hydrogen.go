@@ -189,15 +189,12 @@ func toGasReference(g *GasSupplyBody) (hardening.GasReference, error) {
 	return hardening.StandardGasReference(kind)
 }
 
+var iodineValueBases = map[string]hardening.IodineValueBasis{
+	"": hardening.FeedBasis, "feed": hardening.FeedBasis, "product": hardening.ProductBasis,
+}
+
 func toIodineValueBasis(s string) (hardening.IodineValueBasis, error) {
-	switch s {
-	case "", "feed":
-		return hardening.FeedBasis, nil
-	case "product":
-		return hardening.ProductBasis, nil
-	}
-	return 0, NewError(KindMalformed, "unknown iodine value basis",
-		FieldError{Pointer: "/iodine_value_basis", Reason: "must be feed or product"})
+	return enumValue(iodineValueBases, s, "/iodine_value_basis", "must be feed or product")
 }
 
 // feedIodineValue returns the feed's iodine value, computing it from the

@@ -186,15 +186,6 @@ func meltingPathUnder(path []any, prefix string) []any {
 	return path
 }
 
-func enumValue[T any](m map[string]T, s, pointer, reason string) (T, error) {
-	v, ok := m[s]
-	if !ok {
-		var zero T
-		return zero, NewError(KindMalformed, "unknown value", FieldError{Pointer: pointer, Reason: reason})
-	}
-	return v, nil
-}
-
 // toMeltingOptions converts the melting options shared by /v1/melting, the
 // calibration and the hardening forecast's melting target.
 func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Profile, prefix string) (melting.Options, []WarningBody, error) {

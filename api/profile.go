@@ -38,10 +38,10 @@ func toChemProfile(cat *chem.Catalogue, b *ProfileBody, path ...any) (*chem.Prof
 	if b == nil {
 		return nil, NewError(KindMalformed, "the profile is missing", FieldError{Pointer: Pointer(path...), Reason: "required"})
 	}
-	basis, ok := basisNames[b.Basis]
-	if !ok {
-		return nil, NewError(KindMalformed, "unknown basis",
-			FieldError{Pointer: Pointer(append(path, "basis")...), Reason: "must be fame_weight_percent, acid_weight_percent or mole_percent"})
+	basis, err := enumValue(basisNames, b.Basis, Pointer(append(path, "basis")...),
+		"must be fame_weight_percent, acid_weight_percent or mole_percent")
+	if err != nil {
+		return nil, err
 	}
 	tol := chem.DefaultSumTolerance
 	if b.SumTolerancePercent != nil {

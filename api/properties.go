@@ -86,12 +86,7 @@ var materialNames = map[string]chem.Material{
 }
 
 func toChemMaterial(s string, path ...any) (chem.Material, error) {
-	m, ok := materialNames[s]
-	if !ok {
-		return 0, NewError(KindMalformed, "unknown material",
-			FieldError{Pointer: Pointer(path...), Reason: "must be triacylglycerols, free_fatty_acids or methyl_esters"})
-	}
-	return m, nil
+	return enumValue(materialNames, s, Pointer(path...), "must be triacylglycerols, free_fatty_acids or methyl_esters")
 }
 
 func handleProperties(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
