@@ -44,11 +44,11 @@ const (
 // testdata/melting/VALIDATION.md (rule: β′; among the three models and the
 // 3–5 % slip thresholds, the smallest mean slip-point error on the
 // published targets wins). In β′ it puts palm oil and palm kernel oil inside
-// their published slip-point ranges with a mean error of 3.7 K over the four
+// their published slip-point ranges with a mean error of 3.2 K over the five
 // cases, where MultiplePureSolids melts every case 6–12 K too early (the
 // many dilute lauric TAGs cannot crystallise together in it) and
 // IdealSolidSolution forces every TAG, even triolein, into one solid. Its
-// known misses — coconut oil about 5 K high, a palm curve too steep near
+// known misses — coconut oil about 6 K high, a palm curve too steep near
 // 25 °C — are listed in VALIDATION.md.
 const DefaultSolidModel = SolidSolutionFamilies
 
