@@ -249,6 +249,17 @@ func TestMeltingWarningPointers(t *testing.T) {
 		}
 	}
 	require.True(t, saw, "palm-like has 20:0 and 20:1, outside the fitted data: %v", got.Warnings)
+
+	// Without sn2_estimate the seed-oil rule applies, which does not suit
+	// palm oil: the warning points where the client chooses the rule.
+	var sn2 bool
+	for _, w := range got.Warnings {
+		if w.Code == "sn2_rule_questionable" {
+			sn2 = true
+			require.Equal(t, "/sn2_estimate", w.Pointer)
+		}
+	}
+	require.True(t, sn2, "%v", got.Warnings)
 }
 
 func TestCalibrationFromSFCPoints(t *testing.T) {

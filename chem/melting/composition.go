@@ -91,6 +91,15 @@ func (e SN2Estimate) String() string {
 	}
 }
 
+// PalmLikePalmiticMoleFraction is the palmitic acid share (mole fraction of
+// the chains) from which the seed-oil rule warns that the fat looks like
+// palm oil or one of its fractions. Our choice between the two groups:
+// Codex CXS 210 puts palm oil at 39.3–47.5 % palmitic acid (DOMAIN §11) and
+// palm olein, the softest fraction, at about 38 % or more [memory], while the
+// seed oils of the same standard stay below about 27 % (cottonseed, the
+// highest) [memory].
+const PalmLikePalmiticMoleFraction = 0.35
+
 // PalmSN2Selectivity is the sn-2 selectivity of saturated and C20+ acids
 // relative to unsaturated acids of C18 and shorter in the palm rule. With it
 // a palm oil of about 50 % saturated acids carries about 13 % saturated acids
@@ -233,6 +242,10 @@ const (
 	// WarnSN2Clipped: a supplied sn-2 composition exceeded 3·x_i slightly
 	// and was clipped.
 	WarnSN2Clipped = "sn2_clipped"
+	// WarnSN2RuleQuestionable: the seed-oil sn-2 rule was applied to a fat
+	// with as much palmitic acid as palm oil and its fractions (see
+	// PalmLikePalmiticMoleFraction).
+	WarnSN2RuleQuestionable = "sn2_rule_questionable"
 	// WarnSlipUndefined: the SFC never reaches the slip threshold in the
 	// searched range, so no slip melting point is reported.
 	WarnSlipUndefined = "slip_point_undefined"
@@ -357,12 +370,26 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 	weight := make([]float64, n)
 	switch opt.SN2 {
 	case SN2SeedOil:
+		var palmitic float64
 		for i, comp := range p.Components {
-			if comp.Acid.DoubleBondCount > 0 && comp.Acid.Carbons == 18 {
+			a := comp.Acid
+			if a.DoubleBondCount > 0 && a.Carbons == 18 {
 				weight[i] = 1
 			}
+			if a.DoubleBondCount == 0 && a.Carbons == 16 && a.HydroxyPosition == 0 {
+				palmitic += x[i]
+			}
 		}
-		return waterFill(x, weight), nil, nil
+		var warn []chem.Warning
+		if palmitic >= PalmLikePalmiticMoleFraction {
+			warn = append(warn, chem.Warning{Code: WarnSN2RuleQuestionable, Message: fmt.Sprintf(
+				"the seed-oil sn-2 rule keeps palmitic acid out of sn-2, but this fat has %.1f mol %% palmitic acid, "+
+					"as palm oil and its fractions do, which carry some at sn-2; for them use sn2_estimate palm_rule "+
+					"or a measured sn2_profile (with the seed-oil rule a palm oil's slip melting point comes out "+
+					"about 11 K low)", 100*palmitic),
+				Path: []any{"composition", "sn2_estimate"}})
+		}
+		return waterFill(x, weight), warn, nil
 	case SN2Palm:
 		for i, comp := range p.Components {
 			a := comp.Acid

@@ -629,3 +629,37 @@ func TestPrepareGroupsByFamilyRule(t *testing.T) {
 		require.InDeltaSlice(t, exp, got, 1e-12, c.Name)
 	}
 }
+
+// TestSeedOilRuleWarnsOnPalmLikeFat: the seed-oil sn-2 rule keeps palmitic
+// acid out of sn-2, which does not suit palm oil (about 11 % palmitic acid at
+// sn-2: Ong & Goh, Food Nutr. Bull. 23(1):11, 2002, Table 2). A palm-like
+// fat under that rule gets a warning pointing at sn2_estimate; the palm rule
+// and a seed oil do not. The message's "about 11 K low" is checked here on
+// DOMAIN §3's palm-like vector.
+func TestSeedOilRuleWarnsOnPalmLikeFat(t *testing.T) {
+	has := func(ws []chem.Warning) (chem.Warning, bool) {
+		for _, w := range ws {
+			if w.Code == WarnSN2RuleQuestionable {
+				return w, true
+			}
+		}
+		return chem.Warning{}, false
+	}
+	seed, err := Melt(palmLike(t), Options{})
+	require.NoError(t, err)
+	w, ok := has(seed.Warnings)
+	require.True(t, ok, "%v", seed.Warnings)
+	require.Equal(t, []any{"composition", "sn2_estimate"}, w.Path)
+	require.Contains(t, w.Message, "palm_rule")
+
+	palm, err := Melt(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2Palm}})
+	require.NoError(t, err)
+	_, ok = has(palm.Warnings)
+	require.False(t, ok)
+	require.InDelta(t, 11, palm.SlipMeltingPointC-seed.SlipMeltingPointC, 2, "the message says about 11 K")
+
+	soy, err := Melt(soyLike(t), Options{})
+	require.NoError(t, err)
+	_, ok = has(soy.Warnings)
+	require.False(t, ok, "soybean oil has about 10 %% palmitic acid")
+}
