@@ -452,7 +452,11 @@ func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float6
 		}
 		fv := v - thr
 		if hi-lo < 1e-7 || fv == 0 {
-			return t, true, nil
+			// Where the SFC drops in a step (a fat of one species melts
+			// at one temperature) the root is the step, which the clear
+			// point found by its own iteration may place a few 1e-8 K
+			// lower: keep slip ≤ clear.
+			return math.Min(t, clear), true, nil
 		}
 		if fv > 0 {
 			lo, flo = t, fv
@@ -468,7 +472,7 @@ func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float6
 			side = 1
 		}
 	}
-	return 0.5 * (lo + hi), true, nil
+	return math.Min(0.5*(lo+hi), clear), true, nil
 }
 
 // SFCPoint is one point of a solid fat content curve.

@@ -296,7 +296,8 @@ func (m *Mixture) sfcEutectic(tK, shiftK float64, w *workspace) float64 {
 			}
 		}
 	}
-	return 100 * solidMass / m.totalMass
+	// Rounding can put an all-solid fat a few ulps above 100 %.
+	return math.Min(100, 100*solidMass/m.totalMass)
 }
 
 // eutecticLiquid returns the liquid fraction L solving

@@ -1,0 +1,92 @@
+package melting
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/chem"
+)
+
+// TestRandomProfilesKeepInvariants runs the melting model on random
+// profiles drawn from the whole catalogue (1–25 acids, any share) under
+// every solid model, polymorph and distribution, and checks what must hold
+// whatever the fat: no error, SFC finite and within 0–100 %, non-increasing
+// in temperature, the slip melting point at the threshold and not above the
+// clear point, and no solid above the clear point. First principles, no
+// external values: these are the model's invariants.
+func TestRandomProfilesKeepInvariants(t *testing.T) {
+	cat := chem.NewCatalogue()
+	acids := cat.Acids()
+	rng := rand.New(rand.NewPCG(20261201, 4))
+	n := 150
+	if testing.Short() {
+		n = 30
+	}
+	models := []SolidModel{MultiplePureSolids, IdealSolidSolution, SolidSolutionFamilies}
+	polys := []Polymorph{Alpha, BetaPrime, Beta}
+	for k := 0; k < n; k++ {
+		m := 1 + rng.IntN(25)
+		seen := map[string]bool{}
+		var entries []chem.Entry
+		for len(entries) < m {
+			a := acids[rng.IntN(len(acids))]
+			if seen[a.ID] {
+				continue
+			}
+			seen[a.ID] = true
+			// Shares spread over four decades, as real profiles have.
+			entries = append(entries, chem.Entry{Label: a.ID, Percent: math.Pow(10, 2*rng.Float64()-1)})
+		}
+		var sum float64
+		for _, e := range entries {
+			sum += e.Percent
+		}
+		for i := range entries {
+			entries[i].Percent = math.Min(100, entries[i].Percent*100/sum)
+		}
+		p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.5)
+		require.NoError(t, err)
+		opt := Options{SolidModel: models[k%3], Polymorph: polys[(k/3)%3]}
+		switch k % 4 {
+		case 1:
+			opt.Composition.SN2 = SN2Palm
+		case 2:
+			opt.Composition.Distribution = FullRandom
+		case 3:
+			opt.Composition.NoPooling = true
+		}
+		r, err := Melt(p, opt)
+		require.NoError(t, err, "case %d: %v %+v", k, entries, opt)
+		for i, pt := range r.Curve {
+			require.False(t, math.IsNaN(pt.SFCPercent), "case %d", k)
+			require.GreaterOrEqual(t, pt.SFCPercent, 0.0, "case %d", k)
+			require.LessOrEqual(t, pt.SFCPercent, 100.0, "case %d", k)
+			if i > 0 {
+				require.LessOrEqual(t, pt.SFCPercent, r.Curve[i-1].SFCPercent+1e-9,
+					"case %d: SFC rises at %g °C (%v %+v)", k, pt.TemperatureC, entries, opt)
+			}
+		}
+		f, err := Prepare(p, opt)
+		require.NoError(t, err)
+		if r.SlipMeltingPointDefined {
+			require.LessOrEqual(t, r.SlipMeltingPointC, r.ClearPointC, "case %d", k)
+			// The SFC crosses the threshold at the slip point; a fat of
+			// one species melts in a step, so look just either side.
+			thr := r.Parameters.SlipThresholdPercent
+			below, err := f.SolidFatContent(r.SlipMeltingPointC - 1e-5)
+			require.NoError(t, err)
+			above, err := f.SolidFatContent(r.SlipMeltingPointC + 1e-5)
+			require.NoError(t, err)
+			require.GreaterOrEqual(t, below, thr-1e-3, "case %d: slip point off the threshold (%v %+v)", k, entries, opt)
+			require.LessOrEqual(t, above, thr+1e-3, "case %d: slip point off the threshold (%v %+v)", k, entries, opt)
+		}
+		if r.ClearPointC+1e-6 <= MaxTemperatureC {
+			v, err := f.SolidFatContent(r.ClearPointC + 1e-6)
+			require.NoError(t, err)
+			require.InDelta(t, 0, v, 1e-9, "case %d: solid above the clear point", k)
+		}
+	}
+}
