@@ -94,10 +94,10 @@ func (e SN2Estimate) String() string {
 // PalmLikePalmiticMoleFraction is the palmitic acid share (mole fraction of
 // the chains) from which the seed-oil rule warns that the fat looks like
 // palm oil or one of its fractions. Our choice between the two groups:
-// Codex CXS 210 puts palm oil at 39.3–47.5 % palmitic acid (DOMAIN §11) and
-// palm olein, the softest fraction, at about 38 % or more [memory], while the
-// seed oils of the same standard stay below about 27 % (cottonseed, the
-// highest) [memory].
+// Codex CXS 210 puts palm oil at 39.3–47.5 % palmitic acid (DOMAIN §11);
+// the palm olein reference material has 39.66 % (Tarmizi, Siew & Kuntom,
+// J. Oleo Sci. 57:275, 2008, abstract); the seed oils of the same standard
+// stay below about 27 % (cottonseed, the highest) [memory].
 const PalmLikePalmiticMoleFraction = 0.35
 
 // PalmSN2Selectivity is the sn-2 selectivity of saturated and C20+ acids
