@@ -180,7 +180,12 @@ func meltingPathUnder(path []any, prefix string) []any {
 	if len(path) > 0 {
 		switch path[0] {
 		case "polymorph", "solid_model", "slip_threshold_percent", "calibration", "composition":
-			return append([]any{prefix}, meltingPath(path)...)
+			p := meltingPath(path)
+			if len(p) > 0 && p[0] == "sn2_profile" {
+				// The sn-2 composition is the request's own, not a melting option.
+				return p
+			}
+			return append([]any{prefix}, p...)
 		}
 	}
 	return path
@@ -207,9 +212,36 @@ func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Prof
 		"must be seed_oil_rule or palm_rule"); err != nil {
 		return opt, nil, err
 	}
-	if b.Sn2Profile != nil && len(b.Sn2EnrichmentFactors) > 0 {
+	if b.Sn2Profile != nil && b.Sn2EnrichmentFactors != nil {
 		return opt, nil, NewError(KindMalformed, "give an sn-2 profile or enrichment factors, not both",
 			FieldError{Pointer: prefix + "/sn2_enrichment_factors", Reason: "not with sn2_profile"})
+	}
+	// Every way of placing acids at sn-2 excludes the others, and the full
+	// random distribution uses none: refuse a combination rather than let
+	// one input silently win.
+	var sn2Fields []FieldError
+	sn2Given := func(name string) {
+		reason := "not with full_random, which places every acid at random"
+		if opt.Composition.Distribution != melting.FullRandom {
+			reason = "not with sn2_profile or sn2_enrichment_factors, which fix sn-2 themselves"
+		}
+		sn2Fields = append(sn2Fields, FieldError{Pointer: prefix + "/" + name, Reason: reason})
+	}
+	if opt.Composition.Distribution == melting.FullRandom {
+		if b.Sn2Estimate != "" {
+			sn2Given("sn2_estimate")
+		}
+		if b.Sn2Profile != nil {
+			sn2Fields = append(sn2Fields, FieldError{Pointer: "/sn2_profile", Reason: "not with full_random, which places every acid at random"})
+		}
+		if b.Sn2EnrichmentFactors != nil {
+			sn2Given("sn2_enrichment_factors")
+		}
+	} else if b.Sn2Estimate != "" && (b.Sn2Profile != nil || b.Sn2EnrichmentFactors != nil) {
+		sn2Given("sn2_estimate")
+	}
+	if len(sn2Fields) > 0 {
+		return opt, nil, NewError(KindMalformed, "the request places sn-2 acids in more than one way", sn2Fields...)
 	}
 	if b.Sn2Profile != nil {
 		sn2, err := toChemProfile(cat, b.Sn2Profile, "sn2_profile")
@@ -220,13 +252,28 @@ func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Prof
 		opt.Composition.SN2Profile = sn2
 		warnings = append(warnings, toWarnings(sn2.Warnings, "sn2_profile")...)
 	}
-	if len(b.Sn2EnrichmentFactors) > 0 {
+	if b.Sn2EnrichmentFactors != nil {
 		factors := make([]float64, len(profile.Components))
+		seen := make(map[*chem.FattyAcid]int, len(b.Sn2EnrichmentFactors))
 		for i, f := range b.Sn2EnrichmentFactors {
 			ptr := Pointer("sn2_enrichment_factors", i, "acid")
 			r, err := cat.Resolve(f.Acid)
-			if err != nil || r.Acid == nil {
-				return opt, nil, NewError(KindUnprocessable, "unknown acid in the enrichment factors", FieldError{Pointer: ptr, Reason: "not a known fatty-acid label"})
+			switch {
+			case err != nil:
+				ce, _ := chem.AsError(err)
+				return opt, nil, NewError(KindUnprocessable, "unknown acid in the enrichment factors",
+					FieldError{Pointer: ptr, Reason: ce.Message, Suggestions: ce.Suggestions})
+			case r.Acid == nil:
+				return opt, nil, NewError(KindUnprocessable, "an enrichment factor needs an identified acid",
+					FieldError{Pointer: ptr, Reason: "an unidentified remainder has no sn-2 preference"})
+			}
+			if j, dup := seen[r.Acid]; dup {
+				return opt, nil, NewError(KindMalformed, "two enrichment factors name the same acid",
+					FieldError{Pointer: ptr, Reason: fmt.Sprintf("%s already has a factor at sn2_enrichment_factors/%d", r.Acid.ID, j)})
+			}
+			seen[r.Acid] = i
+			if r.Assumption != "" {
+				warnings = append(warnings, WarningBody{Code: chem.WarnAssumedIsomer, Message: r.Assumption, Pointer: ptr})
 			}
 			found := false
 			for j, c := range profile.Components {
@@ -287,8 +334,9 @@ func fromMeltingError(e melting.CalibrationError, hasSlip bool) MeltingError {
 }
 
 // toTAGAmounts resolves the labels of an explicit TAG composition.
-func toTAGAmounts(cat *chem.Catalogue, tags []TAGEntry) ([]melting.TAGAmount, error) {
+func toTAGAmounts(cat *chem.Catalogue, tags []TAGEntry) ([]melting.TAGAmount, []WarningBody, error) {
 	out := make([]melting.TAGAmount, len(tags))
+	warnings := []WarningBody{}
 	bad := NewError(KindUnprocessable, "the TAG composition has labels that name no known acid")
 	for i, t := range tags {
 		out[i].MolePercent = t.MolePercent
@@ -306,13 +354,17 @@ func toTAGAmounts(cat *chem.Catalogue, tags []TAGEntry) ([]melting.TAGAmount, er
 				bad.Fields = append(bad.Fields, FieldError{Pointer: Pointer("triacylglycerols", i, pos.field), Reason: "an unidentified acid cannot be part of a TAG species"})
 			default:
 				*pos.dst = r.Acid
+				if r.Assumption != "" {
+					warnings = append(warnings, WarningBody{Code: chem.WarnAssumedIsomer, Message: r.Assumption,
+						Pointer: Pointer("triacylglycerols", i, pos.field)})
+				}
 			}
 		}
 	}
 	if len(bad.Fields) > 0 {
-		return nil, bad
+		return nil, nil, bad
 	}
-	return out, nil
+	return out, warnings, nil
 }
 
 // prepareFat builds the fat from a profile or from an explicit TAG
@@ -323,11 +375,22 @@ func prepareFat(cat *chem.Catalogue, body *MeltingRequest) (*melting.Fat, []Warn
 			FieldError{Pointer: "", Reason: "exactly one of profile and triacylglycerols is required"})
 	}
 	if body.Triacylglycerols != nil {
-		if body.Distribution != "" || body.Sn2Estimate != "" || body.Sn2Profile != nil || body.Sn2EnrichmentFactors != nil {
-			return nil, nil, NewError(KindMalformed, "distribution and sn-2 options do not apply to a TAG composition",
-				FieldError{Pointer: "/triacylglycerols", Reason: "not with distribution, sn2_estimate, sn2_profile or sn2_enrichment_factors"})
+		var fields []FieldError
+		for _, f := range []struct {
+			given bool
+			name  string
+		}{
+			{body.Distribution != "", "distribution"}, {body.Sn2Estimate != "", "sn2_estimate"},
+			{body.Sn2Profile != nil, "sn2_profile"}, {body.Sn2EnrichmentFactors != nil, "sn2_enrichment_factors"},
+		} {
+			if f.given {
+				fields = append(fields, FieldError{Pointer: "/" + f.name, Reason: "does not apply to a TAG composition (triacylglycerols)"})
+			}
 		}
-		tags, err := toTAGAmounts(cat, body.Triacylglycerols)
+		if len(fields) > 0 {
+			return nil, nil, NewError(KindMalformed, "distribution and sn-2 options do not apply to a TAG composition", fields...)
+		}
+		tags, tagWarnings, err := toTAGAmounts(cat, body.Triacylglycerols)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -339,7 +402,7 @@ func prepareFat(cat *chem.Catalogue, body *MeltingRequest) (*melting.Fat, []Warn
 		if err != nil {
 			return nil, nil, mapErrorPaths(err, tagsPath)
 		}
-		return fat, warnings, nil
+		return fat, append(tagWarnings, warnings...), nil
 	}
 	p, err := toChemProfile(cat, body.Profile, "profile")
 	if err != nil {

@@ -198,7 +198,7 @@ func TestMeltingExplicitTAGs(t *testing.T) {
 		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"oleik","sn3":"16:0","mole_percent":100}]}`, 422, "/triacylglycerols/0/sn2"},
 		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":90}]}`, 422, "/triacylglycerols"},
 		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"profile":` + palmLike + `}`, 400, ""},
-		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"distribution":"full_random"}`, 400, "/triacylglycerols"},
+		{`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"distribution":"full_random"}`, 400, "/distribution"},
 		{`{"temperatures_c":[20]}`, 400, ""},
 	} {
 		rec := do(t, app, call{method: http.MethodPost, path: "/v1/melting", body: c.body})
@@ -291,4 +291,62 @@ func TestForecastSlipTargetUsesSn2Pools(t *testing.T) {
 	without := forecast(t, `{"profile":`+soyFeed+`,"target":{"slip_melting_point_c":36},"catalyst":{"preset":"nickel_selective"},"path_points":2}`)
 	require.InDelta(t, 36, with.MeltingTarget.SlipMeltingPointC, 0.05)
 	require.NotEqual(t, with.IodineValue, without.IodineValue)
+}
+
+// TestMeltingSn2InputsConflict: each way of fixing sn-2 excludes the others
+// and full_random uses none; a request that combines them is refused at the
+// field that would otherwise be silently ignored.
+func TestMeltingSn2InputsConflict(t *testing.T) {
+	app := newApp(t)
+	sn2 := `{"acids":[{"acid":"18:1 c9","percent":70},{"acid":"18:2 c9,c12","percent":20},{"acid":"16:0","percent":10}]}`
+	for _, c := range []struct {
+		path, body string
+		pointers   []string
+	}{
+		{"/v1/melting", `{"profile":` + palmLike + `,"distribution":"full_random","sn2_profile":` + sn2 + `}`, []string{"/sn2_profile"}},
+		{"/v1/melting", `{"profile":` + palmLike + `,"distribution":"full_random","sn2_estimate":"palm_rule"}`, []string{"/sn2_estimate"}},
+		{"/v1/melting", `{"profile":` + palmLike + `,"distribution":"full_random","sn2_enrichment_factors":[{"acid":"16:0","factor":0.2}]}`, []string{"/sn2_enrichment_factors"}},
+		{"/v1/melting", `{"profile":` + palmLike + `,"sn2_estimate":"palm_rule","sn2_profile":` + sn2 + `}`, []string{"/sn2_estimate"}},
+		{"/v1/melting/calibrate", `{"profile":` + palmLike + `,"sn2_estimate":"palm_rule","sn2_enrichment_factors":[{"acid":"16:0","factor":0.2}],"measured":{"slip_melting_point_c":35}}`, []string{"/sn2_estimate"}},
+		{"/v1/melting", `{"profile":` + palmLike + `,"sn2_enrichment_factors":[{"acid":"18:1 c9","factor":5},{"acid":"oleic","factor":0.01}]}`, []string{"/sn2_enrichment_factors/1/acid"}},
+		{"/v1/melting", `{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"sn2_estimate":"palm_rule","distribution":"full_random"}`, []string{"/sn2_estimate", "/distribution"}},
+		{"/v1/hardening/forecast", `{"profile":` + palmLike + `,"sn2_profile":` + sn2 + `,"target":{"slip_melting_point_c":42},"catalyst":{"preset":"nickel_selective"},"melting":{"sn2_estimate":"palm_rule","distribution":"full_random"}}`, []string{"/melting/sn2_estimate", "/melting/distribution"}},
+	} {
+		rec := do(t, app, call{method: http.MethodPost, path: c.path, body: c.body})
+		require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
+		p := decode[api.Problem](t, rec)
+		var ptrs []string
+		for _, e := range p.Errors {
+			ptrs = append(ptrs, e.Pointer)
+		}
+		require.ElementsMatch(t, c.pointers, ptrs, rec.Body.String())
+	}
+}
+
+// TestMeltingTAGLabelsReportAssumedIsomers: a bare "18:1" in a TAG entry or
+// an enrichment factor is read as oleic acid and said so, as in a profile;
+// a TAG request with nothing to report still answers an empty list.
+func TestMeltingTAGLabelsReportAssumedIsomers(t *testing.T) {
+	got := melt(t, `{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}]}`)
+	var ptrs []string
+	for _, w := range got.Warnings {
+		if w.Code == "assumed_isomer" {
+			ptrs = append(ptrs, w.Pointer)
+		}
+	}
+	require.Equal(t, []string{"/triacylglycerols/0/sn2"}, ptrs)
+
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting",
+		body: `{"triacylglycerols":[{"sn1":"16:0","sn2":"16:0","sn3":"16:0","mole_percent":100}]}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.Contains(t, rec.Body.String(), `"warnings":[]`)
+
+	got = melt(t, `{"profile":`+palmLike+`,"sn2_enrichment_factors":[{"acid":"16:0","factor":0.1},{"acid":"18:1","factor":1}]}`)
+	ptrs = nil
+	for _, w := range got.Warnings {
+		if w.Code == "assumed_isomer" {
+			ptrs = append(ptrs, w.Pointer)
+		}
+	}
+	require.Contains(t, ptrs, "/sn2_enrichment_factors/1/acid")
 }
