@@ -6,7 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"net/http"
+	"reflect"
 	"strings"
 
 	"github.com/labstack/echo/v4"
@@ -133,4 +135,23 @@ func enumValue[T any](m map[string]T, s, pointer, reason string) (T, error) {
 		return zero, NewError(KindMalformed, "unknown value", FieldError{Pointer: pointer, Reason: reason})
 	}
 	return v, nil
+}
+
+// Integer is a request integer. JSON Schema's "integer" (and so the
+// contract's validator) accepts a whole number in any JSON spelling — 3,
+// 3.0, 3e0 — which Go's int decoding would refuse; Integer takes them all.
+// The validator has already checked that the value is whole and in range.
+type Integer int
+
+// UnmarshalJSON reads a whole JSON number.
+func (n *Integer) UnmarshalJSON(b []byte) error {
+	var f float64
+	if err := json.Unmarshal(b, &f); err != nil {
+		return err
+	}
+	if f != math.Trunc(f) || math.Abs(f) > 1<<53 {
+		return &json.UnmarshalTypeError{Value: "number " + string(b), Type: reflect.TypeFor[int]()}
+	}
+	*n = Integer(f)
+	return nil
 }

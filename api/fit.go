@@ -23,7 +23,7 @@ type FitRequest struct {
 	Observations   []FitObservation `json:"observations"`
 	Initial        *CatalystChoice  `json:"initial,omitempty"`
 	FreeParameters []string         `json:"free_parameters,omitempty"`
-	MaxIterations  *int             `json:"max_iterations,omitempty"`
+	MaxIterations  *Integer         `json:"max_iterations,omitempty"`
 }
 
 // FitParameter is one fitted or held parameter.
@@ -84,6 +84,7 @@ func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		}
 		warnings := toWarnings(feed.Warnings, "feed")
 		obs := make([]hardening.Observation, len(body.Observations))
+		computed := make(map[int]bool) // observations whose iodine value came from the profile
 		for i, o := range body.Observations {
 			p, err := toChemProfile(cat, o.Profile, "observations", i, "profile")
 			if err != nil {
@@ -95,6 +96,7 @@ func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 				obs[i].IodineValue = *o.IodineValue
 			} else {
 				obs[i].IodineValue = chem.IodineValue(p, chem.MaterialTAG)
+				computed[i] = true
 				warnings = append(warnings, WarningBody{Code: "iodine_value_computed",
 					Message: fmt.Sprintf("no iodine value given; the profile's exact iodine value %.2f was used", obs[i].IodineValue),
 					Pointer: Pointer("observations", i, "iodine_value")})
@@ -114,11 +116,20 @@ func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			req.Free = append(req.Free, p)
 		}
 		if body.MaxIterations != nil {
-			req.MaxIterations = *body.MaxIterations
+			req.MaxIterations = int(*body.MaxIterations)
 		}
 		res, err := hardening.Fit(c.Request().Context(), cat, req)
 		if err != nil {
-			return mapErrorPaths(err, fitPath)
+			// A computed iodine value is the profile's: point there, at
+			// what the client sent.
+			return mapErrorPaths(err, func(path []any) []any {
+				if len(path) == 3 && path[0] == "observations" && path[2] == "iodine_value" {
+					if i, ok := path[1].(int); ok && computed[i] {
+						return []any{"observations", i, "profile"}
+					}
+				}
+				return fitPath(path)
+			})
 		}
 		rec.Calculation("hardening_fit")
 		rec.SolverIterations("hardening_fit", res.Iterations)

@@ -53,7 +53,7 @@ type ForecastRequest struct {
 	Sn2Profile *ProfileBody     `json:"sn2_profile,omitempty"`
 	Target     *HardeningTarget `json:"target"`
 	Catalyst   *CatalystChoice  `json:"catalyst"`
-	PathPoints *int             `json:"path_points,omitempty"`
+	PathPoints *Integer         `json:"path_points,omitempty"`
 	Melting    *MeltingModel    `json:"melting,omitempty"`
 }
 
@@ -251,7 +251,7 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 		req := hardening.NewForecastRequest(feed, target, catalyst)
 		req.Sn2 = sn2
 		if body.PathPoints != nil {
-			req.PathPoints = *body.PathPoints
+			req.PathPoints = int(*body.PathPoints)
 		}
 		var res *hardening.ForecastResult
 		var meltingTarget *MeltingTargetBody

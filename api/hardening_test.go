@@ -198,6 +198,9 @@ func TestHardeningBadRequests(t *testing.T) {
 		{"bad feed label", "/v1/hardening/forecast", `{"profile":{"acids":[{"acid":"18:9","percent":100}]},"target":{"iodine_value":70},"catalyst":{"preset":"copper"}}`, 422, "/profile/acids/0/acid"},
 		{"fit without observations", "/v1/hardening/fit", `{"feed":` + soyFeed + `,"observations":[]}`, 400, "/observations"},
 		{"fit observation above feed", "/v1/hardening/fit", `{"feed":` + soyFeed + `,"observations":[{"profile":` + soyFeed + `,"iodine_value":150}]}`, 422, "/observations/0/iodine_value"},
+		// No iodine value sent: the one computed from the profile equals the
+		// feed's, and the pointer names the profile the client did send.
+		{"fit computed IV at feed", "/v1/hardening/fit", `{"feed":` + soyFeed + `,"observations":[{"profile":` + soyFeed + `}]}`, 422, "/observations/0/profile"},
 		{"fit unknown parameter", "/v1/hardening/fit", `{"feed":` + soyFeed + `,"observations":[{"profile":` + soyFeed + `,"iodine_value":100}],"free_parameters":["speed"]}`, 400, "/free_parameters/0"},
 		{"fit duplicate parameter", "/v1/hardening/fit", `{"feed":` + soyFeed + `,"observations":[{"profile":` + soyFeed + `,"iodine_value":100}],"free_parameters":["trans_share","trans_share"]}`, 400, "/free_parameters"},
 		{"fit bad observation label", "/v1/hardening/fit", `{"feed":` + soyFeed + `,"observations":[{"profile":{"acids":[{"acid":"oleik","percent":100}]},"iodine_value":80}]}`, 422, "/observations/0/profile/acids/0/acid"},

@@ -62,7 +62,7 @@ type MeltingRequest struct {
 	MeltingModel
 	Sn2EnrichmentFactors []EnrichmentFactor   `json:"sn2_enrichment_factors,omitempty"`
 	TemperaturesC        []float64            `json:"temperatures_c,omitempty"`
-	MainSpeciesCount     *int                 `json:"main_species_count,omitempty"`
+	MainSpeciesCount     *Integer             `json:"main_species_count,omitempty"`
 	Measured             *MeltingMeasurements `json:"measured,omitempty"`
 }
 
@@ -300,7 +300,7 @@ func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Prof
 		}
 	}
 	if b.MainSpeciesCount != nil {
-		opt.MainSpecies = *b.MainSpeciesCount
+		opt.MainSpecies = int(*b.MainSpeciesCount)
 	}
 	return opt, warnings, nil
 }

@@ -350,3 +350,20 @@ func TestMeltingTAGLabelsReportAssumedIsomers(t *testing.T) {
 	}
 	require.Contains(t, ptrs, "/sn2_enrichment_factors/1/acid")
 }
+
+// TestIntegersInAnySpelling: JSON Schema's integer, which the contract uses,
+// accepts 3.0 and 1e1; so must the handlers. 3.5 is still refused.
+func TestIntegersInAnySpelling(t *testing.T) {
+	app := newApp(t)
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/melting", body: `{"profile":` + pkoBelitz + `,"main_species_count":1e1}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.Len(t, decode[api.MeltingResponse](t, rec).MainSpecies, 10)
+
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/hardening/forecast",
+		body: `{"profile":` + soyFeed + `,"target":{"iodine_value":70},"catalyst":{"preset":"nickel_selective"},"path_points":3.0}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.Len(t, decode[api.ForecastResponse](t, rec).Path, 3)
+
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/melting", body: `{"profile":` + pkoBelitz + `,"main_species_count":3.5}`})
+	require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
+}
