@@ -37,7 +37,15 @@ const (
 	// KindUnavailable: the request ran out of time or the instance is
 	// shutting down.
 	KindUnavailable
+	// KindClientClosed: the client went away before the answer was ready
+	// (its request context was cancelled). Nobody reads the answer; the
+	// status 499 (a common proxy convention, not an HTTP status) keeps such
+	// requests apart from the service's own failures in logs and metrics.
+	KindClientClosed
 )
+
+// StatusClientClosed is the status recorded for KindClientClosed.
+const StatusClientClosed = 499
 
 // problemTypes is the only table from error kind to HTTP status.
 var problemTypes = map[Kind]struct {
@@ -53,6 +61,7 @@ var problemTypes = map[Kind]struct {
 	KindNotFound:         {http.StatusNotFound, "not-found", "No such resource"},
 	KindMethodNotAllowed: {http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed on this resource"},
 	KindUnavailable:      {http.StatusServiceUnavailable, "unavailable", "The service could not answer in time"},
+	KindClientClosed:     {StatusClientClosed, "client-closed", "The client closed the request"},
 }
 
 // ProblemTypeBase prefixes every problem type URI.
@@ -175,7 +184,7 @@ func classify(err error) *Error {
 		return &Error{Kind: KindUnavailable, Detail: "the calculation ran past the request time limit", Cause: err}
 	}
 	if errors.Is(err, context.Canceled) {
-		return &Error{Kind: KindUnavailable, Detail: "the request was cancelled", Cause: err}
+		return &Error{Kind: KindClientClosed, Detail: "the client closed the request before the answer was ready", Cause: err}
 	}
 	return &Error{Kind: KindInternal, Detail: "internal error", Cause: err}
 }
@@ -273,10 +282,13 @@ func ErrorHandler(logger *slog.Logger, rec Recorder) echo.HTTPErrorHandler {
 			RequestID: RequestID(c),
 			Errors:    e.Fields,
 		}
-		if pt.status >= 500 {
+		switch {
+		case e.Kind == KindClientClosed:
+			// Not a failure of ours: the access log records the 499.
+		case pt.status >= 500:
 			logger.ErrorContext(c.Request().Context(), "request failed",
 				"request_id", p.RequestID, "status", pt.status, "path", p.Instance, "cause", err.Error())
-		} else {
+		default:
 			rec.Rejection(pt.slug)
 		}
 		body, merr := json.Marshal(p)

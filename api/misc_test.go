@@ -1,11 +1,16 @@
 package api_test
 
 import (
+	"bytes"
+	"context"
+	"fmt"
+	"log/slog"
 	"net/http"
 	"net/http/httptest"
 	"strings"
 	"testing"
 
+	"github.com/labstack/echo/v4"
 	"github.com/stretchr/testify/require"
 
 	"lipidsvc/api"
@@ -54,4 +59,37 @@ func TestProbesAndSpec(t *testing.T) {
 	require.Equal(t, "shutting_down", decode[api.Health](t, rec).Status)
 	// Liveness is unaffected by shutdown.
 	require.Equal(t, http.StatusOK, do(t, app, call{method: http.MethodGet, path: "/healthz"}).Code)
+}
+
+// countingRecorder counts rejections.
+type countingRecorder struct {
+	api.NopRecorder
+	rejections int
+}
+
+func (r *countingRecorder) Rejection(string) { r.rejections++ }
+
+// TestClientClosedIsNotAFailure: a request whose client went away (its
+// context cancelled) is recorded as 499, neither logged as a failure of the
+// service nor counted as a rejected request; a deadline is still a 503.
+func TestClientClosedIsNotAFailure(t *testing.T) {
+	var logs bytes.Buffer
+	rec := &countingRecorder{}
+	h := api.ErrorHandler(slog.New(slog.NewJSONHandler(&logs, nil)), rec)
+	e := echo.New()
+	for _, c := range []struct {
+		err    error
+		status int
+		logged bool
+	}{
+		{fmt.Errorf("melting: %w", context.Canceled), api.StatusClientClosed, false},
+		{fmt.Errorf("melting: %w", context.DeadlineExceeded), http.StatusServiceUnavailable, true},
+	} {
+		logs.Reset()
+		w := httptest.NewRecorder()
+		h(c.err, e.NewContext(httptest.NewRequest(http.MethodPost, "/v1/melting", nil), w))
+		require.Equal(t, c.status, w.Code)
+		require.Equal(t, c.logged, logs.Len() > 0, logs.String())
+	}
+	require.Zero(t, rec.rejections)
 }
