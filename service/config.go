@@ -119,6 +119,9 @@ func LoadConfig(args []string, getenv func(string) string) (Config, error) {
 	if cfg.WriteTimeout > 0 && cfg.WriteTimeout <= cfg.RequestTimeout {
 		errs = append(errs, errors.New("LIPIDSVC_WRITE_TIMEOUT must exceed LIPIDSVC_REQUEST_TIMEOUT, or answers are cut off"))
 	}
+	if cfg.ShutdownTimeout < cfg.RequestTimeout {
+		errs = append(errs, errors.New("LIPIDSVC_SHUTDOWN_TIMEOUT must be at least LIPIDSVC_REQUEST_TIMEOUT, or requests in flight at shutdown are cut off"))
+	}
 	return cfg, errors.Join(errs...)
 }
 

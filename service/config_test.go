@@ -56,6 +56,7 @@ func TestConfigRejectsBadValues(t *testing.T) {
 		"LIPIDSVC_BODY_LIMIT_BYTES": "12",
 		"LIPIDSVC_REQUEST_TIMEOUT":  "soon",
 		"LIPIDSVC_WRITE_TIMEOUT":    "1s",
+		"LIPIDSVC_SHUTDOWN_TIMEOUT": "2s",
 	}
 	for k, v := range cases {
 		_, err := LoadConfig(nil, env(map[string]string{k: v}))
