@@ -285,7 +285,14 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			}
 			res = st.ForecastResult
 			rec.SolverIterations("slip_melting_point_search", st.Evaluations)
-			res.Warnings = append(res.Warnings, mapWarningPaths(st.MeltingWarnings, func([]any) []any { return nil })...)
+			// The melting warnings concern the product, whose acids are not
+			// the request's; only those about melting options keep a pointer.
+			res.Warnings = append(res.Warnings, mapWarningPaths(st.MeltingWarnings, func(p []any) []any {
+				if len(p) > 0 && p[0] == "composition" {
+					return meltingPathUnder(p, "melting")
+				}
+				return nil
+			})...)
 			meltingTarget = &MeltingTargetBody{
 				TargetSlipMeltingPointC: st.TargetSlipMeltingPointC,
 				SlipMeltingPointC:       st.SlipMeltingPointC,

@@ -223,3 +223,20 @@ func TestHardeningBadRequests(t *testing.T) {
 		})
 	}
 }
+
+// TestForecastSlipTargetWarnsAtMeltingOptions: the melting model's warning
+// about the sn-2 rule reaches the forecast's answer pointing at the melting
+// option that would change it.
+func TestForecastSlipTargetWarnsAtMeltingOptions(t *testing.T) {
+	got := forecast(t, `{"profile":`+palmLike+`,"target":{"slip_melting_point_c":40},"catalyst":{"preset":"nickel_selective"}}`)
+	var ptrs []string
+	for _, w := range got.Warnings {
+		if w.Code == "sn2_rule_questionable" {
+			ptrs = append(ptrs, w.Pointer)
+		}
+	}
+	require.NotEmpty(t, ptrs, "%v", got.Warnings)
+	for _, p := range ptrs {
+		require.Equal(t, "/melting/sn2_estimate", p)
+	}
+}
