@@ -228,7 +228,9 @@ type Composition struct {
 	// Distribution and SN2Estimate are what was used.
 	Distribution Distribution
 	SN2Estimate  SN2Estimate
-	// Warnings records clipping of a supplied sn-2 composition.
+	// Warnings records what the sn-2 step did or doubts: clipping of a
+	// supplied sn-2 composition (WarnSN2Clipped), the seed-oil rule applied
+	// to a palm-like fat (WarnSN2RuleQuestionable).
 	Warnings []chem.Warning
 }
 
@@ -538,16 +540,21 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 		return nil, nil, bad
 	}
 	if len(clipped) > 0 {
-		var s float64
-		for _, v := range b {
-			s += v
-		}
+		// Share the clipped excess among the other sn-2 acids in
+		// proportion to their supplied shares, again capped at 3·x_i:
+		// waterFill with weights b_i/x_i does exactly that (rescaling all of
+		// b would push the clipped acids back over their limit).
+		weight := make([]float64, len(b))
 		for i := range b {
-			b[i] /= s
+			if x[i] > 0 {
+				weight[i] = b[i] / x[i]
+			}
 		}
+		b = waterFill(x, weight)
 		warn = append(warn, chem.Warning{Code: WarnSN2Clipped, Message: fmt.Sprintf(
 			"the sn-2 share of %s exceeded three times its overall share by less than %.2g mole fraction; "+
-				"it was clipped to that limit and the sn-2 composition rescaled", strings.Join(clipped, ", "), maxSN2Overshoot),
+				"it was clipped to that limit and the excess shared among the other sn-2 acids in proportion",
+			strings.Join(clipped, ", "), maxSN2Overshoot),
 			Path: []any{"composition", "sn2_profile"}})
 	}
 	return b, warn, nil

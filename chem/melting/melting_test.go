@@ -663,3 +663,37 @@ func TestSeedOilRuleWarnsOnPalmLikeFat(t *testing.T) {
 	_, ok = has(soy.Warnings)
 	require.False(t, ok, "soybean oil has about 10 %% palmitic acid")
 }
+
+// TestSuppliedSN2ClipKeepsTheBalance: a supplied sn-2 composition slightly
+// above the limit b_i ≤ 3·x_i is clipped to it, and the pools still rebuild
+// the profile, x = (2a + b)/3 (DOMAIN §9; first principles). Before the fix
+// the clipped acid was rescaled back over its limit and the rebuilt profile
+// drifted by 1e-3.
+func TestSuppliedSN2ClipKeepsTheBalance(t *testing.T) {
+	cat := chem.NewCatalogue()
+	mole := func(lines ...acidPct) *chem.Profile {
+		var e []chem.Entry
+		for _, l := range lines {
+			e = append(e, chem.Entry{Label: l.label, Percent: l.pct})
+		}
+		p, err := chem.NewProfile(cat, chem.BasisMole, e, 0.5)
+		require.NoError(t, err)
+		return p
+	}
+	p := mole(acidPct{"16:0", 40}, acidPct{"18:1", 50}, acidPct{"18:2", 10})
+	sn2 := mole(acidPct{"16:0", 5}, acidPct{"18:1", 64.1}, acidPct{"18:2", 30.9})
+	c, err := TAGComposition(p, CompositionOptions{SN2: SN2Supplied, SN2Profile: sn2})
+	require.NoError(t, err)
+	var clippedWarned bool
+	for _, w := range c.Warnings {
+		clippedWarned = clippedWarned || w.Code == WarnSN2Clipped
+	}
+	require.True(t, clippedWarned)
+	var sb float64
+	for i := range c.Total {
+		require.LessOrEqual(t, c.SN2[i], 3*c.Total[i]+1e-15, c.Acids[i].ID)
+		require.InDelta(t, c.Total[i], (2*c.SN13[i]+c.SN2[i])/3, 1e-12, c.Acids[i].ID)
+		sb += c.SN2[i]
+	}
+	require.InDelta(t, 1, sb, 1e-12)
+}
