@@ -153,7 +153,8 @@ type CompositionOptions struct {
 	// solid-solution family (mole fractions summed, mass kept exactly,
 	// melting point and enthalpy mole-averaged). Zero means
 	// DefaultFamiliesPoolFloorMoleFraction for the SolidSolutionFamilies
-	// model and DefaultPoolFloorMoleFraction otherwise. Field
+	// model and DefaultPoolFloorMoleFraction for IdealSolidSolution; the
+	// MultiplePureSolids model never pools. Field
 	// "pool_floor_mole_fraction".
 	PoolFloorMoleFraction float64
 	// NoPooling keeps every species (slower for profiles with many acids).

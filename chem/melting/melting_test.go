@@ -697,3 +697,23 @@ func TestSuppliedSN2ClipKeepsTheBalance(t *testing.T) {
 	}
 	require.InDelta(t, 1, sb, 1e-12)
 }
+
+// TestEutecticModelNeverPools: in the multiple-pure-solids model each
+// species saturates on its own, so pooling trace species changes the
+// answer (this seed oil's clear point was 19.9 °C pooled against 14.1 °C
+// exact, with 0.5 % of the mass pooled; found in review). The model keeps
+// every species, whatever floor is asked for.
+func TestEutecticModelNeverPools(t *testing.T) {
+	p := profileOf(t, acidPct{"14:0", 0.5}, acidPct{"16:0", 8}, acidPct{"18:0", 3}, acidPct{"20:0", 0.8}, acidPct{"22:0", 0.8},
+		acidPct{"24:0", 0.4}, acidPct{"18:1", 25}, acidPct{"18:2", 54}, acidPct{"18:3", 7.5})
+	for _, floor := range []float64{0, 1e-4, 0.01} {
+		r, err := Melt(p, Options{SolidModel: MultiplePureSolids,
+			Composition: CompositionOptions{Distribution: FullRandom, PoolFloorMoleFraction: floor}})
+		require.NoError(t, err)
+		require.Zero(t, r.PooledSpecies)
+		require.Zero(t, r.Parameters.PoolFloorMoleFraction)
+		require.Equal(t, r.SpeciesCount, r.ComponentCount)
+		// Regression value of the exact (unpooled) computation.
+		require.InDelta(t, 14.07, r.ClearPointC, 0.05)
+	}
+}

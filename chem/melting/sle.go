@@ -21,7 +21,7 @@ const (
 	// Σ_i min(z_i/L, x_i,sat) = 1; the solid amount of i is
 	// max(0, z_i − L·x_i,sat). The left side is piecewise in L with
 	// breakpoints z_i/x_i,sat, so sorting the breakpoints gives L exactly
-	// (DOMAIN §10).
+	// (DOMAIN §10). It never pools species (see Options.withDefaults).
 	MultiplePureSolids SolidModel = iota + 1
 	// IdealSolidSolution puts all TAGs in one ideal solid solution of the
 	// chosen polymorph: K_i = x_solid/x_liquid = 1/x_i,sat, and the solid
