@@ -113,7 +113,11 @@ func Calibrate(ctx context.Context, p *chem.Profile, opt Options, m Measurements
 	}
 	// The threshold is always returned (fitted, or the one the shift was
 	// fitted with), so the calibration means the same wherever it is used.
-	if len(m.SFC) > 0 && !(rep.After.SFCRMSErrorPercent < rep.Before.SFCRMSErrorPercent) {
+	// A model that already matches (RMS error under 0.01 points) has
+	// nothing to improve; otherwise a shift that does not lower the error
+	// means the model cannot follow the points.
+	if len(m.SFC) > 0 && rep.Before.SFCRMSErrorPercent > 0.01 &&
+		!(rep.After.SFCRMSErrorPercent < rep.Before.SFCRMSErrorPercent-1e-9) {
 		rep.Warnings = append(rep.Warnings, limitWarning(
 			"no temperature shift improves the match with the measured SFC points; the model cannot follow them", "temperature_shift_k"))
 	}
@@ -217,8 +221,11 @@ func (c *calibrator) fitShiftToSFC() (float64, error) {
 			}
 		}
 	}
+	// Keep the refined shift only if it is strictly better: on a flat
+	// stretch (points no shift changes) the grid's choice, the shift nearest
+	// 0, stands.
 	s := 0.5 * (lo + hi)
-	if v, err := c.sse(s); err == nil && v > bestV {
+	if v, err := c.sse(s); err != nil || !(v < bestV) {
 		s = best
 	}
 	return s, nil

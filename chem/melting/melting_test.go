@@ -717,3 +717,39 @@ func TestEutecticModelNeverPools(t *testing.T) {
 		require.InDelta(t, 14.07, r.ClearPointC, 0.05)
 	}
 }
+
+// TestCalibrationOnOwnCurveAndFlatPoints: calibrating on the model's own SFC
+// points returns no shift and no warning; points no shift can change
+// (solid-free temperatures far above the clear point) return shift 0 with
+// the "cannot follow" warning only when there is an error to remove.
+// First principles; found in review (before: a spurious warning, and a
+// shift of 0.25 K drifting out of the flat stretch).
+func TestCalibrationOnOwnCurveAndFlatPoints(t *testing.T) {
+	p := palmLike(t)
+	opt := Options{Composition: CompositionOptions{SN2: SN2Palm}}
+	f, err := Prepare(p, opt)
+	require.NoError(t, err)
+	var own Measurements
+	for _, tc := range []float64{10, 20, 30} {
+		v, err := f.SolidFatContent(tc)
+		require.NoError(t, err)
+		own.SFC = append(own.SFC, SFCPoint{TemperatureC: tc, SFCPercent: v})
+	}
+	rep, err := Calibrate(context.Background(), p, opt, own)
+	require.NoError(t, err)
+	require.InDelta(t, 0, rep.Calibration.TemperatureShiftK, 1e-3)
+	require.Empty(t, rep.Warnings)
+
+	flat := Measurements{SFC: []SFCPoint{{TemperatureC: 80, SFCPercent: 0}, {TemperatureC: 90, SFCPercent: 0}}}
+	rep, err = Calibrate(context.Background(), p, opt, flat)
+	require.NoError(t, err)
+	require.Equal(t, 0.0, rep.Calibration.TemperatureShiftK)
+	require.Empty(t, rep.Warnings, "no error to remove")
+
+	flat.SFC[0].SFCPercent = 5 // an error no shift can remove
+	rep, err = Calibrate(context.Background(), p, opt, flat)
+	require.NoError(t, err)
+	require.Equal(t, 0.0, rep.Calibration.TemperatureShiftK)
+	require.Len(t, rep.Warnings, 1)
+	require.Equal(t, WarnCalibrationLimit, rep.Warnings[0].Code)
+}
