@@ -365,8 +365,12 @@ func (f *Fat) Warnings() []chem.Warning { return slices.Clone(f.warnings) }
 
 // SolidFatContent is the SFC (mass %) at temperatureC in the fat's
 // polymorph and solid model, with its calibration shift applied (the shift
-// is already in the components).
+// is already in the components). A temperature outside [MinTemperatureC,
+// MaxTemperatureC] is a KindInvalid error.
 func (f *Fat) SolidFatContent(temperatureC float64) (float64, error) {
+	if err := checkTemperatureC(temperatureC); err != nil {
+		return 0, err
+	}
 	return f.mixture.sfc(f.opt.SolidModel, temperatureC+zeroCelsiusK, 0, f.opt.MaxIterations, f.mixture.newWorkspace())
 }
 

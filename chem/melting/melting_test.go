@@ -753,3 +753,25 @@ func TestCalibrationOnOwnCurveAndFlatPoints(t *testing.T) {
 	require.Len(t, rep.Warnings, 1)
 	require.Equal(t, WarnCalibrationLimit, rep.Warnings[0].Code)
 }
+
+// TestSolidFatContentRejectsBadInput: the exported SFC entry points refuse
+// temperatures outside the model's range (a liquid fat at −300 °C or a NaN
+// answer were possible) and unknown solid models (which fell through to the
+// eutectic model). Found in review.
+func TestSolidFatContentRejectsBadInput(t *testing.T) {
+	f, err := Prepare(palmLike(t), Options{})
+	require.NoError(t, err)
+	for _, tc := range []float64{math.NaN(), math.Inf(1), -300, MaxTemperatureC + 1} {
+		_, err := f.SolidFatContent(tc)
+		ce, ok := chem.AsError(err)
+		require.True(t, ok, "%g", tc)
+		require.Equal(t, chem.KindInvalid, ce.Kind)
+	}
+	_, err = f.Mixture().SolidFatContent(SolidModel(99), 20, 0)
+	require.Error(t, err)
+	v, err := f.Mixture().SolidFatContent(SolidSolutionFamilies, 20, 0)
+	require.NoError(t, err)
+	w, err := f.SolidFatContent(20)
+	require.NoError(t, err)
+	require.Equal(t, w, v)
+}

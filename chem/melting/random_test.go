@@ -76,14 +76,14 @@ func TestRandomProfilesKeepInvariants(t *testing.T) {
 			// The SFC crosses the threshold at the slip point; a fat of
 			// one species melts in a step, so look just either side.
 			thr := r.Parameters.SlipThresholdPercent
-			below, err := f.SolidFatContent(r.SlipMeltingPointC - 1e-5)
+			below, err := f.SolidFatContent(math.Max(r.SlipMeltingPointC-1e-5, MinTemperatureC))
 			require.NoError(t, err)
 			above, err := f.SolidFatContent(r.SlipMeltingPointC + 1e-5)
 			require.NoError(t, err)
 			require.GreaterOrEqual(t, below, thr-1e-3, "case %d: slip point off the threshold (%v %+v)", k, entries, opt)
 			require.LessOrEqual(t, above, thr+1e-3, "case %d: slip point off the threshold (%v %+v)", k, entries, opt)
 		}
-		if r.ClearPointC+1e-6 <= MaxTemperatureC {
+		if r.ClearPointC+1e-6 <= MaxTemperatureC && r.ClearPointC >= MinTemperatureC {
 			v, err := f.SolidFatContent(r.ClearPointC + 1e-6)
 			require.NoError(t, err)
 			require.InDelta(t, 0, v, 1e-9, "case %d: solid above the clear point", k)

@@ -217,8 +217,25 @@ func (m *Mixture) newWorkspace() *workspace {
 // 100·Σ solid_i·M_i / Σ z_i·M_i (DOMAIN §10). maxIterations caps the
 // Rachford–Rice iteration of the ideal solid solution (≤ 0 means
 // DefaultMaxIterations).
+// It returns a KindInvalid error for an unknown model or a temperature
+// outside [MinTemperatureC, MaxTemperatureC].
 func (m *Mixture) SolidFatContent(model SolidModel, temperatureC float64, maxIterations int) (float64, error) {
+	if model < MultiplePureSolids || model > SolidSolutionFamilies {
+		return 0, chem.Errorf(chem.KindInvalid, "unknown solid model %d", int(model)).WithField("unknown", "solid_model")
+	}
+	if err := checkTemperatureC(temperatureC); err != nil {
+		return 0, err
+	}
 	return m.sfc(model, temperatureC+zeroCelsiusK, 0, maxIterations, m.newWorkspace())
+}
+
+// checkTemperatureC accepts a temperature inside the model's range.
+func checkTemperatureC(tC float64) error {
+	if !(tC >= MinTemperatureC && tC <= MaxTemperatureC) {
+		return chem.Errorf(chem.KindInvalid, "temperature %g °C is outside the model's range %g to %g °C",
+			tC, MinTemperatureC, MaxTemperatureC).WithField("out of range", "temperature_c")
+	}
+	return nil
 }
 
 // sfc evaluates the solid fat content at tK with every melting point
