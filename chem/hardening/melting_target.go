@@ -48,7 +48,9 @@ type SlipTargetResult struct {
 // final iodine value (which keeps working where pooling of minor TAG species
 // makes the slip melting point step slightly rather than vary smoothly).
 //
-// Errors: the forecast's and the melting model's; KindOutOfDomain with the
+// Errors: the forecast's and the melting model's; KindInvalid when mopt
+// supplies an sn-2 composition or enrichment factors (use req.Sn2, which is
+// hardened with the feed); KindOutOfDomain with the
 // field path ("target", "slip_melting_point_c") when the feed already melts
 // at or above the target or even a fully hardened product stays below it;
 // KindNoConvergence past the iteration cap; ctx.Err() when ctx ends.
@@ -60,6 +62,13 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 	}
 	if req.Feed == nil {
 		return nil, chem.Errorf(chem.KindInvalid, "the feed is missing").WithField("required", "feed")
+	}
+	// A measured sn-2 composition enters as req.Sn2, which is hardened
+	// along with the feed; one fixed sn-2 profile or per-acid factors in
+	// mopt would be applied unchanged to products whose acids differ.
+	if s := mopt.Composition.SN2; s == melting.SN2Supplied || s == melting.SN2Enrichment {
+		return nil, chem.Errorf(chem.KindInvalid, "give a measured sn-2 composition as the forecast's Sn2, not as a melting option").
+			WithField("use the forecast's sn-2 composition", "composition", "sn2_estimate")
 	}
 	// With an sn-2 composition the melting model uses the (hardened) sn-2
 	// pool instead of estimating one, since hardening barely moves acids

@@ -61,6 +61,15 @@ func TestForecastToSlipMeltingPointRejects(t *testing.T) {
 		require.True(t, ok, "%v: %v", target, err)
 		require.Equal(t, []any{"target", "slip_melting_point_c"}, ce.Fields[0].Path)
 	}
+	// sn-2 placement fixed in the melting options would be applied
+	// unchanged to products with other acids (found in review).
+	for _, sn2 := range []melting.SN2Estimate{melting.SN2Supplied, melting.SN2Enrichment} {
+		_, err := ForecastToSlipMeltingPoint(context.Background(), cat, req, 35,
+			melting.Options{Composition: melting.CompositionOptions{SN2: sn2, SN2Profile: req.Feed, EnrichmentFactors: make([]float64, len(req.Feed.Components))}})
+		ce, ok := chem.AsError(err)
+		require.True(t, ok, "%v", err)
+		require.Equal(t, chem.KindInvalid, ce.Kind)
+	}
 	// A feed that already melts above the target.
 	stearin, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{{Label: "18:0", Percent: 60}, {Label: "18:1 c9", Percent: 40}}, 0)
 	require.NoError(t, err)

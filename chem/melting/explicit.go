@@ -64,13 +64,15 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	}
 
 	// The acids in order of first appearance, and the species by index.
-	index := map[*chem.FattyAcid]int{}
+	// Acids are keyed by canonical ID, as everywhere else, so entries read
+	// through different catalogue instances still meet.
+	index := map[string]int{}
 	var acids []*chem.FattyAcid
 	idx := func(a *chem.FattyAcid) int {
-		if k, ok := index[a]; ok {
+		if k, ok := index[a.ID]; ok {
 			return k
 		}
-		index[a] = len(acids)
+		index[a.ID] = len(acids)
 		acids = append(acids, a)
 		return len(acids) - 1
 	}

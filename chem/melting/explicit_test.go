@@ -119,3 +119,27 @@ func TestCompareMatchesCalibrationReport(t *testing.T) {
 	require.InDelta(t, rep.After.SFCMaxAbsErrorPercent, got.SFCMaxAbsErrorPercent, 1e-6)
 	require.InDelta(t, rep.After.SlipErrorK, got.SlipErrorK, 1e-6)
 }
+
+// TestExplicitTAGsKeyAcidsByID: the same species given through acids of two
+// catalogue instances is one species (summed, with its measured melting
+// point), as acids are matched by canonical ID everywhere. Found in review.
+func TestExplicitTAGsKeyAcidsByID(t *testing.T) {
+	c1, c2 := chem.NewCatalogue(), chem.NewCatalogue()
+	acid := func(c *chem.Catalogue, id string) *chem.FattyAcid {
+		a, ok := c.ByID(id)
+		require.True(t, ok, id)
+		return a
+	}
+	list := []TAGAmount{
+		{Outer1: acid(c1, "16:0"), Middle: acid(c1, "18:1 c9"), Outer2: acid(c1, "16:0"), MolePercent: 50},
+		{Outer1: acid(c2, "16:0"), Middle: acid(c2, "18:1 c9"), Outer2: acid(c2, "16:0"), MolePercent: 50},
+	}
+	f, err := PrepareTAGs(list, Options{Polymorph: Beta}, 0.5)
+	require.NoError(t, err)
+	r, err := f.Melt()
+	require.NoError(t, err)
+	require.Equal(t, 1, r.SpeciesCount)
+	require.Len(t, r.MainSpecies, 1)
+	require.True(t, r.MainSpecies[0].MeltingPointMeasured, "POP β has a measured melting point")
+	require.InDelta(t, 100, r.MainSpecies[0].MolePercent, 1e-9)
+}

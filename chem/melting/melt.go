@@ -230,7 +230,7 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	f.warnings = append(f.warnings, comp.Warnings...)
 	pr, outside := prepareAcids(comp.Acids, opt.Polymorph)
 	outsideMass := f.build(pr)
-	f.finishWarnings(outside, outsideMass)
+	f.finishWarnings(presentOnly(outside, comp), outsideMass)
 	return f, nil
 }
 
@@ -275,6 +275,22 @@ func prepareAcids(acids []*chem.FattyAcid, p Polymorph) (prepared, []string) {
 	}
 	return prepared{chains: chains, hcOuter: hcOuter, scOuter: scOuter, hcSN2: hcSN2, scSN2: scSN2, gx: gx, gy: gy, k: k,
 		thetaK: coef.CompensationTemperatureK, overrides: resolveOverrides(acids, p)}, outside
+}
+
+// presentOnly drops from ids the acids the fat holds no more than a trace
+// of (a hardening product lists every acid the network can form, many at
+// 0 %), so the outside-fit warning names only acids that matter.
+func presentOnly(ids []string, comp *Composition) []string {
+	var out []string
+	for _, id := range ids {
+		for i, a := range comp.Acids {
+			if a.ID == id && comp.Total[i] > chem.SumNoise {
+				out = append(out, id)
+				break
+			}
+		}
+	}
+	return out
 }
 
 // finishWarnings adds the warnings about acids outside the fit and pooling.
