@@ -76,12 +76,12 @@ type MeltingError struct {
 
 // MainSpecies is one of the largest TAG species.
 type MainSpecies struct {
-	TAG                  string  `json:"tag"`
-	ShortName            string  `json:"short_name"`
-	MolePercent          float64 `json:"mole_percent"`
-	MassPercent          float64 `json:"mass_percent"`
-	MeltingPointC        float64 `json:"melting_point_c"`
-	MeltingPointMeasured bool    `json:"melting_point_measured"`
+	TAG                  string   `json:"tag"`
+	ShortName            string   `json:"short_name"`
+	MolePercent          float64  `json:"mole_percent"`
+	MassPercent          float64  `json:"mass_percent"`
+	MeltingPointC        *float64 `json:"melting_point_c"`
+	MeltingPointMeasured bool     `json:"melting_point_measured"`
 }
 
 // MeltingParameters echoes what the result was computed with.
@@ -563,7 +563,7 @@ func fromMelting(r *melting.Result, warnings []WarningBody, paths func([]any) []
 	for _, s := range r.MainSpecies {
 		out.MainSpecies = append(out.MainSpecies, MainSpecies{
 			TAG: s.Label, ShortName: s.ShortName, MolePercent: s.MolePercent, MassPercent: s.MassPercent,
-			MeltingPointC: s.MeltingPointC, MeltingPointMeasured: s.MeltingPointMeasured,
+			MeltingPointC: finiteOrNil(s.MeltingPointC), MeltingPointMeasured: s.MeltingPointMeasured,
 		})
 	}
 	return out

@@ -367,3 +367,14 @@ func TestIntegersInAnySpelling(t *testing.T) {
 	rec = do(t, app, call{method: http.MethodPost, path: "/v1/melting", body: `{"profile":` + pkoBelitz + `,"main_species_count":3.5}`})
 	require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
 }
+
+// TestSpeciesWithoutMeltingPoint: a species the correlation gives no
+// melting point (tributyrin in α sits at the floor that marks it as never
+// crystallising in range) is listed with melting_point_c null, not the
+// floor's −123 °C.
+func TestSpeciesWithoutMeltingPoint(t *testing.T) {
+	got := melt(t, `{"triacylglycerols":[{"sn1":"4:0","sn2":"4:0","sn3":"4:0","mole_percent":100}],"polymorph":"alpha"}`)
+	require.Len(t, got.MainSpecies, 1)
+	require.Nil(t, got.MainSpecies[0].MeltingPointC)
+	require.Nil(t, got.ClearPointC)
+}

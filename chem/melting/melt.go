@@ -517,7 +517,9 @@ type SpeciesShare struct {
 	Label, ShortName string
 	MolePercent      float64
 	MassPercent      float64
-	// MeltingPointC in the result's polymorph, calibration shift included.
+	// MeltingPointC in the result's polymorph, calibration shift included;
+	// NaN when the correlation gives the species no melting point (it
+	// never crystallises in the model's range).
 	MeltingPointC float64
 	// MeltingPointMeasured reports a measured override.
 	MeltingPointMeasured bool
@@ -704,11 +706,21 @@ func (f *Fat) mainSpecies() []SpeciesShare {
 			Label: sp.Label(), ShortName: sp.ShortName(),
 			MolePercent:          100 * sp.MoleFraction,
 			MassPercent:          100 * sp.MoleFraction * sp.MolarMass / f.totalMass,
-			MeltingPointC:        e.tmK + f.opt.Calibration.TemperatureShiftK - zeroCelsiusK,
+			MeltingPointC:        speciesMeltingPointC(e.tmK, f.opt.Calibration.TemperatureShiftK),
 			MeltingPointMeasured: e.measured,
 		}
 	}
 	return out
+}
+
+// speciesMeltingPointC is a listed species' melting point, °C, or NaN when
+// the correlation gives none (the species sits at the floor that marks it
+// as never crystallising in the model's range).
+func speciesMeltingPointC(tmK, shiftK float64) float64 {
+	if tmK <= floorMeltingPointK {
+		return math.NaN()
+	}
+	return tmK + shiftK - zeroCelsiusK
 }
 
 // SlipMeltingPointC is the cheap entry point for root finders (for example
