@@ -39,6 +39,7 @@ func TestEndToEnd(t *testing.T) {
 		"LIPIDSVC_ADDR=127.0.0.1:0",
 		"LIPIDSVC_METRICS_ADDR=127.0.0.1:0",
 		"LIPIDSVC_DRAIN_DELAY=1s",
+		"LIPIDSVC_REQUEST_TIMEOUT=5s",
 		"LIPIDSVC_SHUTDOWN_TIMEOUT=5s",
 	)
 	stdout, err := cmd.StdoutPipe()
