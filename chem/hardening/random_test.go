@@ -9,6 +9,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/chemtest"
 )
 
 // TestRandomFeedsKeepInvariants hardens random feeds drawn from the whole
@@ -21,7 +22,6 @@ import (
 // principles (mass balance, monotone hydrogenation), no external values.
 func TestRandomFeedsKeepInvariants(t *testing.T) {
 	cat := chem.NewCatalogue()
-	acids := cat.Acids()
 	presets := Presets()
 	rng := rand.New(rand.NewPCG(20261201, 7))
 	n := 80
@@ -30,24 +30,7 @@ func TestRandomFeedsKeepInvariants(t *testing.T) {
 	}
 	answered := 0
 	for k := 0; k < n; k++ {
-		m := 1 + rng.IntN(20)
-		seen := map[string]bool{}
-		var entries []chem.Entry
-		for len(entries) < m {
-			a := acids[rng.IntN(len(acids))]
-			if seen[a.ID] {
-				continue
-			}
-			seen[a.ID] = true
-			entries = append(entries, chem.Entry{Label: a.ID, Percent: math.Pow(10, 2*rng.Float64()-1)})
-		}
-		var sum float64
-		for _, e := range entries {
-			sum += e.Percent
-		}
-		for i := range entries {
-			entries[i].Percent = math.Min(100, entries[i].Percent*100/sum)
-		}
+		entries := chemtest.RandomEntries(rng, cat, 20)
 		feed, err := chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.5)
 		require.NoError(t, err)
 		feedIV := chem.ComputeProperties(feed, chem.MaterialTAG).IodineValue

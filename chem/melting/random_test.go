@@ -8,6 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/chemtest"
 )
 
 // TestRandomProfilesKeepInvariants runs the melting model on random
@@ -19,7 +20,6 @@ import (
 // external values: these are the model's invariants.
 func TestRandomProfilesKeepInvariants(t *testing.T) {
 	cat := chem.NewCatalogue()
-	acids := cat.Acids()
 	rng := rand.New(rand.NewPCG(20261201, 4))
 	n := 150
 	if testing.Short() {
@@ -28,25 +28,7 @@ func TestRandomProfilesKeepInvariants(t *testing.T) {
 	models := []SolidModel{MultiplePureSolids, IdealSolidSolution, SolidSolutionFamilies}
 	polys := []Polymorph{Alpha, BetaPrime, Beta}
 	for k := 0; k < n; k++ {
-		m := 1 + rng.IntN(25)
-		seen := map[string]bool{}
-		var entries []chem.Entry
-		for len(entries) < m {
-			a := acids[rng.IntN(len(acids))]
-			if seen[a.ID] {
-				continue
-			}
-			seen[a.ID] = true
-			// Shares spread over four decades, as real profiles have.
-			entries = append(entries, chem.Entry{Label: a.ID, Percent: math.Pow(10, 2*rng.Float64()-1)})
-		}
-		var sum float64
-		for _, e := range entries {
-			sum += e.Percent
-		}
-		for i := range entries {
-			entries[i].Percent = math.Min(100, entries[i].Percent*100/sum)
-		}
+		entries := chemtest.RandomEntries(rng, cat, 25)
 		p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.5)
 		require.NoError(t, err)
 		opt := Options{SolidModel: models[k%3], Polymorph: polys[(k/3)%3]}
