@@ -247,3 +247,13 @@ func TestBadLabelsAre422WithSuggestions(t *testing.T) {
 		require.NotEmpty(t, p.Errors[0].Suggestions, l)
 	}
 }
+
+// TestNegativeZeroShare: -0 is valid JSON for a zero share; it must not
+// come back as "-0" in the per-acid figures (found in review).
+func TestNegativeZeroShare(t *testing.T) {
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/properties",
+		body: `{"profile":{"acids":[{"acid":"16:0","percent":-0},{"acid":"18:1 c9","percent":100}]}}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.NotContains(t, rec.Body.String(), "-0,")
+	require.NotContains(t, rec.Body.String(), ":-0}")
+}

@@ -2,6 +2,7 @@ package chem
 
 import (
 	"fmt"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -198,6 +199,52 @@ func (a *FattyAcid) allNames() []string {
 	add(strings.TrimSuffix(a.SystematicName, " acid"))
 	for _, n := range a.Names {
 		add(n)
+	}
+	for _, n := range a.locantNames() {
+		add(n)
+	}
+	return out
+}
+
+// systematicStemRe splits an IUPAC name such as
+// "(9Z,12Z)-octadeca-9,12-dienoic acid" into the chain stem "octadeca" and
+// the ending "dienoic".
+var systematicStemRe = regexp.MustCompile(`^\([^)]*\)-([a-z]+)-[\d,]+-([a-z]+) acid$`)
+
+// locantNames are the older systematic spellings laboratories and FAME
+// standard lists use, with cis/trans locants: "cis-9-octadecenoic",
+// "cis,cis-9,12-octadecadienoic" and "cis-9,cis-12-octadecadienoic" (and
+// "eicos…" beside the current "icos…"). Only for acids whose bonds are all
+// resolved and that carry no hydroxy group.
+func (a *FattyAcid) locantNames() []string {
+	if len(a.Bonds) == 0 || a.HydroxyPosition != 0 {
+		return nil
+	}
+	m := systematicStemRe.FindStringSubmatch(a.SystematicName)
+	if m == nil {
+		return nil
+	}
+	stems := []string{m[1] + m[2]}
+	if strings.HasPrefix(m[1], "icos") {
+		stems = append(stems, "e"+m[1]+m[2])
+	}
+	geo := make([]string, len(a.Bonds))
+	pos := make([]string, len(a.Bonds))
+	pairs := make([]string, len(a.Bonds))
+	for i, b := range a.Bonds {
+		geo[i] = "cis"
+		if b.Geometry == Trans {
+			geo[i] = "trans"
+		}
+		pos[i] = strconv.Itoa(b.Position)
+		pairs[i] = geo[i] + "-" + pos[i]
+	}
+	var out []string
+	for _, stem := range stems {
+		out = append(out, strings.Join(geo, ",")+"-"+strings.Join(pos, ",")+"-"+stem)
+		if len(a.Bonds) > 1 {
+			out = append(out, strings.Join(pairs, ",")+"-"+stem)
+		}
 	}
 	return out
 }

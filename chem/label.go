@@ -36,7 +36,7 @@ var (
 	splitRe     = regexp.MustCompile(`[\s,;/()\[\]]+`)
 	omegaRe     = regexp.MustCompile(`^(?:n|w)-?(\d{1,2})(c|t|cis|trans)?$`)
 	bondPreRe   = regexp.MustCompile(`^(c|t|cis|trans|z|e)-?(\d{1,2})$`)
-	bondPostRe  = regexp.MustCompile(`^(\d{1,2})(c|t|z|e|cis|trans)?$`)
+	bondPostRe  = regexp.MustCompile(`^(\d{1,2})-?(c|t|z|e|cis|trans)?$`)
 	hydroxyRe   = regexp.MustCompile(`^(\d{1,2})?-?oh$`)
 )
 
@@ -45,7 +45,7 @@ var (
 var labelFolder = strings.NewReplacer(
 	"α", "alpha", "γ", "gamma", "ω-", "n-", "ω", "n-", "Ω", "n-",
 	"omega-", "n-", "omega ", "n-", "omega", "n-",
-	"δ", " ", "Δ", " ", "delta", " ",
+	"-δ", "-", "-Δ", "-", "δ", " ", "Δ", " ", "delta", " ",
 	"‐", "-", "‑", "-", "‒", "-", "–", "-", "—", "-", "−", "-",
 	"\u00a0", " ", "\t", " ",
 )
@@ -206,7 +206,7 @@ func (q *query) parseToken(tok string) error {
 // leadingBondRe finds one bond at the start of a glued run.
 var (
 	leadPreRe  = regexp.MustCompile(`^(cis|trans|c|t|z|e)-?\d{1,2}`)
-	leadPostRe = regexp.MustCompile(`^\d{1,2}(cis|trans|c|t|z|e)?`)
+	leadPostRe = regexp.MustCompile(`^\d{1,2}(?:-?(?:cis|trans|c|t|z|e))?`)
 )
 
 func leadingBond(tok string, prefixed bool) string {
@@ -233,9 +233,13 @@ func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, erro
 	if len(q.bonds) > 0 && len(q.bonds) != q.d {
 		return Resolution{}, c.unknown(label, &q, suggest)
 	}
+	// The n-x notation names cis, methylene-interrupted acids
+	// (IUPAC-IUBMB): without a geometry or positions it never names a trans
+	// or conjugated isomer, even when that is the only one with the n-x.
+	nx := q.omega != 0 && q.geometry == GeometryUnknown && len(q.bonds) == 0
 	var cands []*FattyAcid
 	for _, a := range group {
-		if q.matches(a) {
+		if q.matches(a) && (!nx || a.AllCis() && !a.Conjugated()) {
 			cands = append(cands, a)
 		}
 	}
@@ -252,19 +256,6 @@ func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, erro
 			if a.LumpedGeometry == Trans {
 				return Resolution{Acid: a}, nil
 			}
-		}
-	}
-	// The n-x notation names cis, methylene-interrupted acids
-	// (IUPAC-IUBMB); without a geometry it means the all-cis isomer.
-	if q.omega != 0 && q.geometry == GeometryUnknown && len(q.bonds) == 0 {
-		var cis []*FattyAcid
-		for _, a := range cands {
-			if a.AllCis() {
-				cis = append(cis, a)
-			}
-		}
-		if len(cis) == 1 {
-			return Resolution{Acid: cis[0]}, nil
 		}
 	}
 	// "C18:2n6t" in FAME reference mixtures is the all-trans isomer.

@@ -28,6 +28,17 @@ func TestResolveSpellings(t *testing.T) {
 		{"C18:1n9", "18:1 c9", false},
 		{"C18:1n9c", "18:1 c9", false},
 		{"C18:1n9t", "18:1 t9", false},
+		// Older systematic names with cis/trans locants, as FAME standard
+		// lists write them, and Δ locants with the geometry before or after.
+		{"cis-9-octadecenoic acid", "18:1 c9", false},
+		{"trans-9-octadecenoic", "18:1 t9", false},
+		{"methyl cis-11-eicosenoate", "20:1 c11", false},
+		{"cis,cis-9,12-octadecadienoic acid", "18:2 c9,c12", false},
+		{"cis-9,cis-12-octadecadienoic", "18:2 c9,c12", false},
+		{"cis-9,trans-11-octadecadienoic acid", "18:2 c9,t11", false},
+		{"18:1 cis-Δ9", "18:1 c9", false},
+		{"18:1 Δ9-cis", "18:1 c9", false},
+		{"18:1 9-cis", "18:1 c9", false},
 		{"18:1 n-9", "18:1 c9", false},
 		{"18:1 ω-9", "18:1 c9", false},
 		{"18:1 omega-9", "18:1 c9", false},
@@ -125,6 +136,8 @@ func TestResolveBadLabels(t *testing.T) {
 		{"20:3", "20:3 c8,c11,c14"},         // ambiguous n-6 / n-3
 		{"22:5", "22:5 c7,c10,c13,c16,c19"}, // ambiguous n-3 / n-6
 		{"18:1 Δ9", "18:1 t9"},              // position without geometry: c9 or t9
+		{"9-octadecenoic acid", ""},         // position without geometry
+		{"18:2 n-7", "18:2 c9,t11"},         // n-x names cis, methylene-interrupted acids; rumenic is neither
 		{"oleik", "18:1 c9"},                // misspelt
 		{"linolenik", "18:3 c9,c12,c15"},    // misspelt
 		{"palmitic-ish", "16:0"},            // not a name

@@ -114,6 +114,9 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 			bad.WithField("percent must be a finite number from 0 to 100", "acids", i, "percent")
 			continue
 		}
+		if e.Percent == 0 {
+			e.Percent = 0 // −0 (valid JSON) must not come back as "-0"
+		}
 		p.InputSum += e.Percent
 		// Suggestions cost an edit-distance search; a profile full of bad
 		// labels gets them for the first few only.

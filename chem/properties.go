@@ -306,16 +306,18 @@ func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
 	ix.Cox = (c18m + 10.3*c18d + 21.6*c18t) / 100
 	ix.Atherogenic = ratio(c12+4*c14+c16, s.Monounsaturated+s.N6+s.N3)
 	den := 0.5*s.Monounsaturated + 0.5*s.N6 + 3*s.N3
-	if s.N6 > 0 {
+	switch {
+	case s.N6 > 0:
 		den += s.N3 / s.N6
-	} else {
+	case s.N3 > 0:
+		// n-3 without n-6: the ratio is infinite, so the term is dropped.
 		warn = append(warn, Warning{WarnUndefinedIndex,
-			"the profile has no n-6 acid, so the n-3/n-6 term of the thrombogenic index was left out", nil})
+			"the profile has n-3 but no n-6 acid, so the n-3/n-6 term of the thrombogenic index was left out", nil})
 	}
 	ix.Thrombogenic = ratio(c14+c16+c18, den)
 	if ix.Atherogenic == nil || ix.Thrombogenic == nil {
 		warn = append(warn, Warning{WarnUndefinedIndex,
-			"the profile has no unsaturated acid in the denominator of the atherogenic or thrombogenic index; the index is not given", nil})
+			"the profile has no monounsaturated, n-6 or n-3 acid in the denominator of the atherogenic or thrombogenic index; the index is not given", nil})
 	}
 	if p.Basis != BasisFAMEWeight {
 		warn = append(warn, Warning{WarnBasisConversion,

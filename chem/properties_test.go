@@ -293,6 +293,24 @@ func TestIndicesUndefinedForSaturatedFat(t *testing.T) {
 	require.Contains(t, codes, WarnUndefinedIndex)
 }
 
+// TestThrombogenicTermWarnsOnlyWhenDropped: without n-6 the n-3/n-6 term
+// is left out; that deserves a warning only when there is n-3 to drop
+// (an oleic/palmitic fat drops nothing). Found in review.
+func TestThrombogenicTermWarnsOnlyWhenDropped(t *testing.T) {
+	cat := NewCatalogue()
+	count := func(m map[string]float64) int {
+		n := 0
+		for _, w := range ComputeProperties(vectorProfile(t, cat, m), MaterialTAG).Warnings {
+			if w.Code == WarnUndefinedIndex {
+				n++
+			}
+		}
+		return n
+	}
+	require.Zero(t, count(map[string]float64{"16:0": 40, "18:1 c9": 60}))
+	require.Equal(t, 1, count(map[string]float64{"16:0": 40, "18:1 c9": 50, "18:3 c9,c12,c15": 10}))
+}
+
 func TestBasisConversionsAgree(t *testing.T) {
 	cat := NewCatalogue()
 	fame := vectorProfile(t, cat, map[string]float64{"12:0": 48, "14:0": 18.5, "16:0": 8.5, "18:1 c9": 25})
