@@ -44,10 +44,11 @@
 // at (ι/K)·k3, relaxing towards trans:cis = K; trans monoenes saturate at
 // ρ·k3. Rates are relative to k3, so the state is a function of the path
 // variable τ = ∫k3 dt (time × activity), and composition against iodine
-// value depends on the six ratios only. For a source that already carries
-// a fraction t/d of trans bonds the product's trans share is
-// t/d + (1 − t/d)·φ; lumped "C:D t" entries are taken to carry one trans
-// bond.
+// value depends on the six ratios only. For a source with t of its d bonds
+// trans the product's trans share is k + (1 − k)·φ, where k, the chance that
+// a trans bond survives the removal of one bond picked at random, is 0 for
+// t = 0, 1 − 1/d for t = 1 and 1 for t ≥ 2 (t/d for dienes); lumped "C:D t"
+// entries are taken to carry one trans bond.
 //
 // Every unsaturated acid of the catalogue is handled:
 //   - Monoenes C16, C18, C20, C22 have cis and trans pools. Newly formed

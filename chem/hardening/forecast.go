@@ -386,8 +386,10 @@ func Forecast(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (*F
 	res.SaturatedPercent = props.Sums.Saturated
 	res.Hydrogen = saturationProductBasis(feedIV, res.FinalIodineValue)
 	res.Flags = Flags{
-		TransAboveLimit:       res.TransPercent > TransLimitPercent,
-		PartiallyHydrogenated: res.FinalIodineValue > FullyHydrogenatedMaxIodineValue,
+		TransAboveLimit: res.TransPercent > TransLimitPercent,
+		// The root finder lands within ivAcceptTolerance of its target, on
+		// either side: a product hardened to exactly the limit is at it.
+		PartiallyHydrogenated: res.FinalIodineValue > FullyHydrogenatedMaxIodineValue+ivAcceptTolerance,
 	}
 
 	if req.Sn2 != nil {

@@ -330,6 +330,14 @@ func TestForecastFlags(t *testing.T) {
 	require.False(t, full.Flags.PartiallyHydrogenated, "IV 3 ≤ 4: fully hydrogenated (80 FR 34650)")
 	require.Equal(t, full.TransPercent > TransLimitPercent, full.Flags.TransAboveLimit)
 
+	// Hardened to exactly the limit, IV 4 is fully hydrogenated (≤ 4) for
+	// every catalyst, whichever side of 4 the root finder lands on (before
+	// review four of five presets flagged it partially hydrogenated).
+	for _, preset := range Presets() {
+		at := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(FullyHydrogenatedMaxIodineValue), preset.Catalyst))
+		require.False(t, at.Flags.PartiallyHydrogenated, preset.Name)
+	}
+
 	// No trans network: no trans at all, under the limit.
 	noTrans := Catalyst{LinolenicSelectivity: 2, LinoleicSelectivity: 50, TransCisEquilibrium: 2, TransSaturationRate: 1}
 	clean := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(70), noTrans))
@@ -599,4 +607,31 @@ func TestParameters(t *testing.T) {
 	_, ok := ParseParameter("speed")
 	require.False(t, ok)
 	require.True(t, math.IsNaN(c.Value(Parameter(42))))
+}
+
+// TestTransTrieneKeepsTransBond: hydrogenating one bond, picked at random,
+// of a triene with one trans bond leaves that trans bond in two cases of
+// three (first principles). With no trans formed on the catalyst (φ = 0, no
+// isomerisation) the first dienes from "18:3 t" are therefore trans to cis
+// as 2 : 1. Before review the model gave 1 : 2 (it used t/d, right only for
+// dienes).
+func TestTransTrieneKeepsTransBond(t *testing.T) {
+	cat := chem.NewCatalogue()
+	feed, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Label: "18:3 t", Percent: 100}}, 0)
+	require.NoError(t, err)
+	c := Catalyst{LinolenicSelectivity: 2, LinoleicSelectivity: 50, TransShare: 0, IsomerisationRate: 0,
+		TransCisEquilibrium: 2, TransSaturationRate: 1}
+	feedIV := chem.IodineValue(feed, chem.MaterialTAG)
+	res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(0.999*feedIV), c))
+	var trans, cis float64
+	for _, comp := range res.Product.Components {
+		switch comp.Acid.ID {
+		case "18:2 t":
+			trans = comp.MoleFraction
+		case "18:2 c9,c12":
+			cis = comp.MoleFraction
+		}
+	}
+	require.Positive(t, cis)
+	require.InDelta(t, 2, trans/cis, 0.01)
 }

@@ -209,8 +209,8 @@ type split int
 
 const (
 	splitWhole split = iota // the whole rate
-	splitTrans              // t/d + (1 − t/d)·φ
-	splitCis                // (1 − t/d)·(1 − φ)
+	splitTrans              // k + (1 − k)·φ, k = transKept(source)
+	splitCis                // (1 − k)·(1 − φ)
 )
 
 // edge is one first-order reaction from one acid to another.
@@ -221,9 +221,10 @@ type edge struct {
 	// 1 otherwise.
 	mult  float64
 	split split
-	// transFrac is t/d, the fraction of the source's double bonds that are
-	// already trans.
-	transFrac float64
+	// keepTrans is the probability that the product keeps one of the
+	// source's trans bonds when one of its d bonds, picked at random, is
+	// hydrogenated (see transKept).
+	keepTrans float64
 }
 
 // value returns the edge's rate constant relative to k3 for catalyst c.
@@ -245,9 +246,9 @@ func (e edge) value(c Catalyst) float64 {
 	}
 	switch e.split {
 	case splitTrans:
-		base *= e.transFrac + (1-e.transFrac)*c.TransShare
+		base *= e.keepTrans + (1-e.keepTrans)*c.TransShare
 	case splitCis:
-		base *= (1 - e.transFrac) * (1 - c.TransShare)
+		base *= (1 - e.keepTrans) * (1 - c.TransShare)
 	}
 	return base * e.mult
 }
@@ -388,23 +389,35 @@ func (ix *acidIndex) cisPartner(a *chem.FattyAcid) *chem.FattyAcid {
 	return ix.ladder(a.Carbons, 1)
 }
 
-// transFraction is t/d: the share of an acid's double bonds that are trans.
-// A lumped trans entry is taken to carry one trans bond, which is what most
-// of the isomers formed in hardening carry [memory].
-func transFraction(a *chem.FattyAcid) float64 {
-	if a.DoubleBondCount == 0 {
+// transKept is the probability that hydrogenating one of an acid's d double
+// bonds, picked at random, leaves one of its t trans bonds in the product:
+// 0 for t = 0, 1 − 1/d for t = 1 (only removing that bond loses it), 1 for
+// t ≥ 2 (first principles). A lumped trans entry is taken to carry one trans
+// bond, which is what most of the isomers formed in hardening carry
+// [memory]. For dienes this equals t/d, the form used before trienes with
+// trans bonds were handled correctly.
+func transKept(a *chem.FattyAcid) float64 {
+	d := a.DoubleBondCount
+	if d == 0 {
 		return 0
 	}
-	if a.LumpedGeometry == chem.Trans {
-		return 1 / float64(a.DoubleBondCount)
-	}
 	t := 0
+	if a.LumpedGeometry == chem.Trans {
+		t = 1
+	}
 	for _, b := range a.Bonds {
 		if b.Geometry == chem.Trans {
 			t++
 		}
 	}
-	return float64(t) / float64(a.DoubleBondCount)
+	switch t {
+	case 0:
+		return 0
+	case 1:
+		return 1 - 1/float64(d)
+	default:
+		return 1
+	}
 }
 
 // newNetwork builds the reaction scheme for the acids of a feed (and of an
@@ -434,7 +447,7 @@ func newNetwork(cat *chem.Catalogue, feed []*chem.FattyAcid) (*network, error) {
 	}
 	untracked := map[string]bool{}
 	connect := func(from int, to *chem.FattyAcid, rk rateKind, mult float64, sp split, tf float64) {
-		net.edges = append(net.edges, edge{from: from, to: add(to), rate: rk, mult: mult, split: sp, transFrac: tf})
+		net.edges = append(net.edges, edge{from: from, to: add(to), rate: rk, mult: mult, split: sp, keepTrans: tf})
 	}
 	// Walk the acids breadth first; products are appended as they appear.
 	for i := 0; i < len(net.acids); i++ {
@@ -482,7 +495,7 @@ func newNetwork(cat *chem.Catalogue, feed []*chem.FattyAcid) (*network, error) {
 			return nil, chem.Errorf(chem.KindOutOfDomain, "the catalogue holds no product to harden %s to", a.ID).
 				WithField("no product in the catalogue", "feed", "acids")
 		}
-		tf := transFraction(a)
+		tf := transKept(a)
 		if tr := ix.lumpedTrans(c, level); tr != nil && level > 0 {
 			connect(i, cis, rk, mult, splitCis, tf)
 			connect(i, tr, rk, mult, splitTrans, tf)
