@@ -546,13 +546,23 @@ func positionalPools(net *network, x0 []float64, sn2 *chem.Profile) (b, a []floa
 
 // warnings explains where the model simplified for this feed.
 func (net *network) warnings() []chem.Warning {
-	if len(net.untracked) == 0 {
-		return nil
+	var out []chem.Warning
+	if len(net.untracked) > 0 {
+		out = append(out, chem.Warning{
+			Code: chem.WarnMethodScope,
+			Message: fmt.Sprintf("the catalogue holds no trans isomers for %s or for what hardening makes of them; "+
+				"trans formed there is counted as cis, so the trans figures are a lower bound", strings.Join(net.untracked, ", ")),
+			Path: []any{"feed", "acids"},
+		})
 	}
-	return []chem.Warning{{
-		Code: chem.WarnMethodScope,
-		Message: fmt.Sprintf("the catalogue holds no trans isomers for %s or for what hardening makes of them; "+
-			"trans formed there is counted as cis, so the trans figures are a lower bound", strings.Join(net.untracked, ", ")),
-		Path: []any{"feed", "acids"},
-	}}
+	if len(net.conjugated) > 0 {
+		out = append(out, chem.Warning{
+			Code: chem.WarnMethodScope,
+			Message: fmt.Sprintf("%s %s conjugated double bonds; the model has no rate of its own for them and hardens "+
+				"them at the rate of the methylene-interrupted isomers", strings.Join(net.conjugated, ", "),
+				map[bool]string{true: "has", false: "have"}[len(net.conjugated) == 1]),
+			Path: []any{"feed", "acids"},
+		})
+	}
+	return out
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -634,4 +635,20 @@ func TestTransTrieneKeepsTransBond(t *testing.T) {
 	}
 	require.Positive(t, cis)
 	require.InDelta(t, 2, trans/cis, 0.01)
+}
+
+// TestForecastWarnsOnConjugatedFeed: conjugated dienes (rumenic acid) are
+// hardened at the rate of their methylene-interrupted isomers, a
+// simplification the answer states.
+func TestForecastWarnsOnConjugatedFeed(t *testing.T) {
+	cat := chem.NewCatalogue()
+	feed, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
+		{Label: "18:2 c9,t11", Percent: 10}, {Label: "18:2 c9,c12", Percent: 50}, {Label: "18:1 c9", Percent: 40}}, 0)
+	require.NoError(t, err)
+	res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(80), mustPreset(t, PresetNickelSelective)))
+	var saw bool
+	for _, w := range res.Warnings {
+		saw = saw || strings.Contains(w.Message, "18:2 c9,t11 has conjugated double bonds")
+	}
+	require.True(t, saw, "%v", res.Warnings)
 }

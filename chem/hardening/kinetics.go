@@ -272,6 +272,9 @@ type network struct {
 	mass   []float64 // free-acid molar mass, g/mol
 	edges  []edge
 	blocks []*block
+	// conjugated lists feed acids with conjugated double bonds, which the
+	// model hardens at the rate of their methylene-interrupted isomers.
+	conjugated []string
 	// untracked lists feed acids whose trans isomers the model cannot
 	// express (no trans entry in the catalogue), for a warning.
 	untracked []string
@@ -444,6 +447,9 @@ func newNetwork(cat *chem.Catalogue, feed []*chem.FattyAcid) (*network, error) {
 				WithField(fmt.Sprintf("hydroxy acid %s cannot be hardened by this model", a.ID), "feed", "acids")
 		}
 		add(a)
+		if a.Conjugated() {
+			net.conjugated = append(net.conjugated, a.ID)
+		}
 	}
 	untracked := map[string]bool{}
 	connect := func(from int, to *chem.FattyAcid, rk rateKind, mult float64, sp split, tf float64) {
