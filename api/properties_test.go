@@ -145,7 +145,8 @@ func TestBadRequests(t *testing.T) {
 		{"Infinity token", call{body: prof(`{"acid":"16:0","percent":Infinity}`)}, 400, ""},
 		{"1e400", call{body: prof(`{"acid":"16:0","percent":1e400}`)}, 400, "/profile/acids/0/percent"},
 		{"negative percent", call{body: prof(`{"acid":"16:0","percent":-1},{"acid":"18:0","percent":101}`)}, 400, "/profile/acids/0/percent"},
-		{"percent above 100", call{body: prof(`{"acid":"16:0","percent":100.5}`)}, 400, "/profile/acids/0/percent"},
+		{"percent above 100 + tolerance", call{body: prof(`{"acid":"16:0","percent":100.6}`)}, 422, "/profile/acids/0/percent"},
+		{"percent above the contract's maximum", call{body: prof(`{"acid":"16:0","percent":111}`)}, 400, "/profile/acids/0/percent"},
 		{"empty list", call{body: prof(``)}, 400, "/profile/acids"},
 		{"more than 300 entries", call{body: prof(entries(301))}, 400, "/profile/acids"},
 		{"missing profile", call{body: `{"material":"triacylglycerols"}`}, 400, "/profile"},
@@ -256,4 +257,14 @@ func TestNegativeZeroShare(t *testing.T) {
 	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
 	require.NotContains(t, rec.Body.String(), "-0,")
 	require.NotContains(t, rec.Body.String(), ":-0}")
+}
+
+// TestPureStandardSlightlyOver100: a single acid read at 100.2 % (a pure
+// reference standard) is within the sum tolerance and is scaled to 100 with
+// a warning, as a profile of several acids summing to 100.2 would be.
+func TestPureStandardSlightlyOver100(t *testing.T) {
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/properties",
+		body: `{"profile":{"acids":[{"acid":"18:1 c9","percent":100.2}]}}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.Contains(t, rec.Body.String(), `"profile_normalised"`)
 }

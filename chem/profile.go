@@ -110,8 +110,10 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 	index := map[*FattyAcid]int{}
 	var unidentified float64
 	for i, e := range entries {
-		if math.IsNaN(e.Percent) || math.IsInf(e.Percent, 0) || e.Percent < 0 || e.Percent > 100 {
-			bad.WithField("percent must be a finite number from 0 to 100", "acids", i, "percent")
+		// One entry may exceed 100 by the sum tolerance: a pure standard
+		// read at 100.2 % is scaled like any profile that sums to 100.2.
+		if math.IsNaN(e.Percent) || math.IsInf(e.Percent, 0) || e.Percent < 0 || e.Percent > 100+tol {
+			bad.WithField(fmt.Sprintf("percent must be a finite number from 0 to 100 (+ the sum tolerance, %g)", tol), "acids", i, "percent")
 			continue
 		}
 		if e.Percent == 0 {
