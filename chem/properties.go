@@ -1,6 +1,9 @@
 package chem
 
-import "fmt"
+import (
+	"fmt"
+	"strings"
+)
 
 // Material is the chemical form the sample is in; it sets the denominators of
 // the iodine and saponification values.
@@ -195,7 +198,7 @@ func ComputeProperties(p *Profile, m Material) Properties {
 			r.IodineValueAOCS = fame[i] * f
 			out.IodineValueAOCS += r.IodineValueAOCS
 		} else if c.Acid.DoubleBondCount > 0 && c.Percent > 0 && out.AOCSApplies {
-			ignored = append(ignored, fmt.Sprintf("%s (%.3g %%)", c.Acid.ID, c.Percent))
+			ignored = append(ignored, fmt.Sprintf("%s (%.3g %% as FAME weight)", c.Acid.ID, fame[i]))
 		}
 		out.Acids[i] = r
 	}
@@ -205,8 +208,8 @@ func ComputeProperties(p *Profile, m Material) Properties {
 			"AOCS Cd 1c-85 defines factors for triacylglycerols and free fatty acids only; no calculated value is given for methyl esters", nil})
 	case len(ignored) > 0:
 		out.Warnings = append(out.Warnings, Warning{WarnMethodScope,
-			fmt.Sprintf("AOCS Cd 1c-85 counts only 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1; it ignores %v, which the exact iodine value includes",
-				ignored), nil})
+			fmt.Sprintf("AOCS Cd 1c-85 counts only 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1; it ignores %s, which the exact iodine value includes",
+				strings.Join(ignored, ", ")), nil})
 	}
 	if out.AOCSApplies && p.Basis != BasisFAMEWeight {
 		out.Warnings = append(out.Warnings, Warning{WarnBasisConversion,
