@@ -249,8 +249,8 @@ func (a *FattyAcid) locantNames() []string {
 	return out
 }
 
-// Acids returns the catalogue entries in catalogue order (by class, then
-// chain length). The slice is a copy; the entries are shared and must not be
+// Acids returns the catalogue entries ordered by number of double bonds,
+// then chain length. The slice is a copy; the entries are shared and must not be
 // modified.
 func (c *Catalogue) Acids() []*FattyAcid {
 	out := make([]*FattyAcid, len(c.acids))

@@ -245,7 +245,19 @@ func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, erro
 	}
 	switch {
 	case len(cands) == 1:
-		return Resolution{Acid: cands[0]}, nil
+		a := cands[0]
+		// A label without positions or n-x ("20:2", "22:6") names a
+		// structure only because the catalogue holds one isomer of it:
+		// say so, as for the bare labels of groups with several.
+		if a.DoubleBondCount > 0 && a.LumpedGeometry == GeometryUnknown && len(q.bonds) == 0 && q.omega == 0 && !q.hydroxy {
+			name := a.CommonName
+			if name == "" {
+				name = a.SystematicName
+			}
+			return Resolution{Acid: a, Assumption: fmt.Sprintf(
+				"label %q does not fix the isomer; read as %s (%s), the only one in the catalogue", label, a.ID, name)}, nil
+		}
+		return Resolution{Acid: a}, nil
 	case len(cands) == 0:
 		return Resolution{}, c.unknown(label, &q, suggest)
 	}

@@ -96,7 +96,7 @@ func TestResolveSpellings(t *testing.T) {
 		{"18:3", "18:3 c9,c12,c15", true},
 		{"16:1", "16:1 c9", true},
 		{"18:1 cis", "18:1 c9", true},
-		{"18:4", "18:4 c6,c9,c12,c15", false},
+		{"18:4", "18:4 c6,c9,c12,c15", true}, // the only 18:4 catalogued, and said so
 		{"C18:1Δ9c", "18:1 c9", false},
 		{"α linolenic acid", "18:3 c9,c12,c15", false},
 		{"DPA n-3", "22:5 c7,c10,c13,c16,c19", false},
