@@ -218,27 +218,25 @@ func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Prof
 	}
 	// Every way of placing acids at sn-2 excludes the others, and the full
 	// random distribution uses none: refuse a combination rather than let
-	// one input silently win.
+	// one input silently win. (sn2_profile and the factors sit at the top
+	// of the body; only the options can sit under a prefix.)
 	var sn2Fields []FieldError
-	sn2Given := func(name string) {
-		reason := "not with full_random, which places every acid at random"
-		if opt.Composition.Distribution != melting.FullRandom {
-			reason = "not with sn2_profile or sn2_enrichment_factors, which fix sn-2 themselves"
-		}
-		sn2Fields = append(sn2Fields, FieldError{Pointer: prefix + "/" + name, Reason: reason})
-	}
 	if opt.Composition.Distribution == melting.FullRandom {
-		if b.Sn2Estimate != "" {
-			sn2Given("sn2_estimate")
-		}
-		if b.Sn2Profile != nil {
-			sn2Fields = append(sn2Fields, FieldError{Pointer: "/sn2_profile", Reason: "not with full_random, which places every acid at random"})
-		}
-		if b.Sn2EnrichmentFactors != nil {
-			sn2Given("sn2_enrichment_factors")
+		for _, f := range []struct {
+			given bool
+			ptr   string
+		}{
+			{b.Sn2Estimate != "", prefix + "/sn2_estimate"},
+			{b.Sn2Profile != nil, "/sn2_profile"},
+			{b.Sn2EnrichmentFactors != nil, "/sn2_enrichment_factors"},
+		} {
+			if f.given {
+				sn2Fields = append(sn2Fields, FieldError{Pointer: f.ptr, Reason: "not with full_random, which places every acid at random"})
+			}
 		}
 	} else if b.Sn2Estimate != "" && (b.Sn2Profile != nil || b.Sn2EnrichmentFactors != nil) {
-		sn2Given("sn2_estimate")
+		sn2Fields = append(sn2Fields, FieldError{Pointer: prefix + "/sn2_estimate",
+			Reason: "not with sn2_profile or sn2_enrichment_factors, which fix sn-2 themselves"})
 	}
 	if len(sn2Fields) > 0 {
 		return opt, nil, NewError(KindMalformed, "the request places sn-2 acids in more than one way", sn2Fields...)
