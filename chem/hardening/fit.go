@@ -7,6 +7,7 @@ import (
 	"math"
 	"sort"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/optimize"
@@ -167,10 +168,13 @@ type FitResult struct {
 	// RMSPercentagePoints is the root mean square of all residuals,
 	// percentage points.
 	RMSPercentagePoints float64
-	// RSquared is 1 − Σ residual² / Σ (observed − mean observed)² over all
-	// groups of all observations: the share of the spread of the observed
-	// percentages the model explains. It is NaN when the observed
-	// percentages have no spread at all.
+	// RSquared is 1 − Σ residual² / Σ_g Σ_j (observed_jg − mean_g)², the
+	// means taken per acid group over the observations: the share of the
+	// change along the hardening path that the model explains. (Against one
+	// mean of all groups it would also count the differences between
+	// groups, which any model reproduces, and read high.) It is NaN when
+	// no group changes between observations (a single observation, or
+	// identical ones).
 	RSquared float64
 	// Iterations is the number of Gauss–Newton iterations.
 	Iterations int
@@ -507,21 +511,37 @@ func newFitter(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*fitte
 	var warnings []chem.Warning
 	free := req.Free
 	if free == nil {
-		var poly float64
+		var trienes, polyenes float64
 		for i, a := range net.acids {
 			if a.DoubleBondCount >= 3 {
-				poly += x0[i]
+				trienes += x0[i]
+			}
+			if a.DoubleBondCount >= 2 {
+				polyenes += x0[i]
 			}
 		}
+		// Without enough trienes the data cannot tell S_Ln; without enough
+		// dienes (and trienes) neither S_R nor the trans share of the bonds
+		// they lose: such parameters are held at their initial values.
+		var held []string
 		for _, p := range DefaultFreeParameters() {
-			if p == ParamLinolenicSelectivity && poly < minLinolenicMoleFraction {
+			switch {
+			case p == ParamLinolenicSelectivity && trienes < minLinolenicMoleFraction:
 				warnings = append(warnings, chem.Warning{Code: chem.WarnMethodScope,
 					Message: fmt.Sprintf("the feed holds %.3g mol %% of acids with three or more double bonds, too little to "+
-						"tell the linolenic selectivity from the data; it was held at %g", 100*poly, req.Initial.LinolenicSelectivity),
+						"tell the linolenic selectivity from the data; it was held at %g", 100*trienes, req.Initial.LinolenicSelectivity),
 					Path: []any{"free"}})
-				continue
+			case (p == ParamLinoleicSelectivity || p == ParamTransShare) && polyenes < minLinolenicMoleFraction:
+				held = append(held, fmt.Sprintf("%s at %g", p, req.Initial.Value(p)))
+			default:
+				free = append(free, p)
 			}
-			free = append(free, p)
+		}
+		if len(held) > 0 {
+			warnings = append(warnings, chem.Warning{Code: chem.WarnMethodScope,
+				Message: fmt.Sprintf("the feed holds %.3g mol %% of acids with two or more double bonds, too little to tell "+
+					"the linoleic selectivity and the trans share from the data; held %s", 100*polyenes, strings.Join(held, " and ")),
+				Path: []any{"free"}})
 		}
 	}
 
@@ -725,7 +745,8 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 		return nil, err
 	}
 	out := &FitResult{Catalyst: c, Iterations: iterations, Warnings: warnings}
-	var ss, sum, n float64
+	var ss, n float64
+	groupMean := make([]float64, len(f.groups))
 	for j := range f.obsIV {
 		of := ObservationFit{IodineValue: f.obsIV[j], PathVariable: taus[j]}
 		var so float64
@@ -736,18 +757,17 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 				Observed: f.observed[j][g], Predicted: pred[j][g], Residual: r,
 			})
 			so += r * r
-			sum += f.observed[j][g]
+			groupMean[g] += f.observed[j][g] / float64(len(f.obsIV))
 			n++
 		}
 		of.RMSPercentagePoints = math.Sqrt(so / float64(len(f.groups)))
 		ss += so
 		out.Observations = append(out.Observations, of)
 	}
-	mean := sum / n
 	var tot float64
 	for j := range f.obsIV {
 		for g := range f.groups {
-			d := f.observed[j][g] - mean
+			d := f.observed[j][g] - groupMean[g]
 			tot += d * d
 		}
 	}
@@ -757,7 +777,18 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 		out.RSquared = 1 - ss/tot
 	}
 
-	se := f.standardErrors(theta, ss)
+	// Groups that are zero in every observation and prediction (products
+	// of acids the feed does not hold) carry no data.
+	active := 0
+	for g := range f.groups {
+		for j := range f.obsIV {
+			if f.observed[j][g] != 0 || pred[j][g] != 0 {
+				active++
+				break
+			}
+		}
+	}
+	se := f.standardErrors(theta, ss, active)
 	freeIndex := map[Parameter]int{}
 	for i, t := range f.free {
 		freeIndex[t.p] = i
@@ -791,9 +822,10 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 
 // standardErrors returns the standard errors of ln p (log parameters) or p
 // (the trans share), from s²(JₙᵀJₙ)⁻¹ with Jₙ the Jacobian in those natural
-// coordinates; nil when they are undefined.
-func (f *fitter) standardErrors(theta []float64, ss float64) []float64 {
-	data := len(f.obsIV) * (len(f.groups) - 1)
+// coordinates and s² = Σr²/(data − free), data counting activeGroups − 1
+// values per observation; nil when they are undefined.
+func (f *fitter) standardErrors(theta []float64, ss float64, activeGroups int) []float64 {
+	data := len(f.obsIV) * (activeGroups - 1)
 	dof := data - len(f.free)
 	if dof <= 0 {
 		return nil

@@ -245,15 +245,45 @@ func TestFitRejects(t *testing.T) {
 	}
 }
 
-// TestFitTooFewData: one observation of a two-acid oil carries one
-// independent value, too few for five parameters.
+// TestFitTooFewData: one observation of a two-acid oil carries two
+// independent values, too few for five parameters freed explicitly.
 func TestFitTooFewData(t *testing.T) {
 	cat := chem.NewCatalogue()
 	feed := profileOf(t, cat, chem.BasisFAMEWeight, "18:0", 20, "18:1", 80)
 	res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(40), syntheticTruth))
 	// The product holds 18:0, 18:1 cis and 18:1 trans: two independent values.
-	_, err := Fit(context.Background(), cat, NewFitRequest(feed, []Observation{{Profile: res.Product, IodineValue: 40}}))
+	req := NewFitRequest(feed, []Observation{{Profile: res.Product, IodineValue: 40}})
+	req.Free = DefaultFreeParameters()
+	_, err := Fit(context.Background(), cat, req)
 	requireFieldError(t, err, chem.KindOutOfDomain, []any{"observations"})
+}
+
+// TestFitHoldsPolyeneParametersWithoutPolyenes: a feed without dienes or
+// trienes cannot tell S_Ln, S_R or the trans share; the default fit holds
+// them at their initial values, says so, and fits the monoene parameters
+// (isomerisation, trans saturation) on exact data.
+func TestFitHoldsPolyeneParametersWithoutPolyenes(t *testing.T) {
+	cat := chem.NewCatalogue()
+	feed := profileOf(t, cat, chem.BasisFAMEWeight, "16:0", 10, "18:0", 5, "18:1", 85)
+	var obs []Observation
+	for _, iv := range []float64{70, 55, 40, 25, 10} {
+		res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(iv), syntheticTruth))
+		obs = append(obs, Observation{Profile: res.Product, IodineValue: iv})
+	}
+	res, err := Fit(context.Background(), cat, NewFitRequest(feed, obs))
+	require.NoError(t, err)
+	var msgs []string
+	for _, w := range res.Warnings {
+		msgs = append(msgs, w.Message)
+	}
+	require.Len(t, msgs, 2, "%v", msgs)
+	require.Contains(t, msgs[1], "linoleic_selectivity")
+	require.Contains(t, msgs[1], "trans_share")
+	for _, p := range res.Parameters {
+		require.Equal(t, p.Parameter == ParamIsomerisationRate || p.Parameter == ParamTransSaturationRate, p.Free, p.Parameter.String())
+	}
+	require.InEpsilon(t, syntheticTruth.IsomerisationRate, res.Catalyst.IsomerisationRate, 0.02)
+	require.InEpsilon(t, syntheticTruth.TransSaturationRate, res.Catalyst.TransSaturationRate, 0.02)
 }
 
 // TestFitIterationCap: a cap too small to converge is a KindNoConvergence
