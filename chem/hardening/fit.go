@@ -324,26 +324,26 @@ func Fit(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*FitResult, 
 	// wins; a run that ends inside the box stands alone.
 	best, err := f.run(f.start(req.Initial), iters)
 	if err != nil || f.atBound(best.x) {
+		first, firstErr, winner := best, err, ""
 		for _, pr := range Presets() {
-			alt, aerr := f.run(f.start(pr.Catalyst.withFixed(req.Initial, f.free)), iters)
+			// start reads only the free parameters; the held ones stay
+			// those of req.Initial (f.base).
+			alt, aerr := f.run(f.start(pr.Catalyst), iters)
 			if cerr := ctx.Err(); cerr != nil {
 				return nil, cerr
 			}
-			if aerr != nil {
-				continue
-			}
-			if err != nil || alt.objective < best.objective*(1-1e-9) {
-				if err == nil && alt.objective < best.objective*(1-1e-6) {
-					warnings = append(warnings, chem.Warning{Code: WarnFitRestarted, Message: fmt.Sprintf(
-						"from the given initial values the fit stopped at a parameter bound (RMS %.3g points); "+
-							"a restart from the %s preset's values fitted better (RMS %.3g points)",
-						f.rms(best.objective), pr.Name, f.rms(alt.objective)), Path: []any{"initial"}})
-				}
-				best, err = alt, nil
+			if aerr == nil && (err != nil || alt.objective < best.objective) {
+				best, err, winner = alt, nil, pr.Name
 			}
 		}
 		if err != nil {
 			return nil, err
+		}
+		if firstErr == nil && winner != "" && best.objective < first.objective*(1-1e-6) {
+			warnings = append(warnings, chem.Warning{Code: WarnFitRestarted, Message: fmt.Sprintf(
+				"from the given initial values the fit stopped at a parameter bound (RMS %.3g points); "+
+					"a restart from the %s preset's values fitted better (RMS %.3g points)",
+				f.rms(first.objective), winner, f.rms(best.objective)), Path: []any{"initial"}})
 		}
 	}
 	return f.result(req, best.x, best.iterations, warnings)
@@ -374,25 +374,22 @@ func (f *fitter) start(c Catalyst) []float64 {
 	return theta
 }
 
-// withFixed returns c with the parameters that are not free taken from
-// fixed, so that a restart changes only what is fitted.
-func (c Catalyst) withFixed(fixed Catalyst, free []paramTransform) Catalyst {
-	out := fixed
-	for _, t := range free {
-		out = out.With(t.p, c.Value(t.p))
-	}
-	return out
-}
-
 // atBound reports whether a free parameter ended within boundShare of a
 // bound of its range.
 func (f *fitter) atBound(theta []float64) bool {
 	for _, th := range theta {
-		if u := 1 / (1 + math.Exp(-th)); u < boundShare || u > 1-boundShare {
+		if thetaAtBound(th) {
 			return true
 		}
 	}
 	return false
+}
+
+// thetaAtBound reports whether a transformed parameter lies within
+// boundShare of a bound: θ is the logit of the position in the range.
+func thetaAtBound(theta float64) bool {
+	u := 1 / (1 + math.Exp(-theta))
+	return u < boundShare || u > 1-boundShare
 }
 
 // rms converts an objective ½‖r‖² into the root-mean-square residual.
@@ -797,9 +794,7 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 		est := ParameterEstimate{Parameter: p, Value: c.Value(p)}
 		if i, ok := freeIndex[p]; ok {
 			est.Free = true
-			// θ is the logit of the position within the search range, so a
-			// large |θ| means the parameter sits on a bound.
-			if u := 1 / (1 + math.Exp(-theta[i])); u < boundShare || u > 1-boundShare {
+			if thetaAtBound(theta[i]) {
 				// A parameter pinned at its bound is not determined by the
 				// data; its linearised standard error would mislead.
 				out.Warnings = append(out.Warnings, chem.Warning{Code: chem.WarnMethodScope,
