@@ -224,6 +224,17 @@ func (q *query) setGeometry(g Geometry) error {
 	return nil
 }
 
+// readAs resolves a label that does not fix the isomer to a, saying so
+// and why a was taken.
+func readAs(label string, a *FattyAcid, why string) Resolution {
+	name := a.CommonName
+	if name == "" {
+		name = a.SystematicName
+	}
+	return Resolution{Acid: a, Assumption: fmt.Sprintf(
+		"label %q does not fix the isomer; read as %s (%s), %s", label, a.ID, name, why)}
+}
+
 // match picks the catalogue entry a parsed shorthand label names.
 func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, error) {
 	group := c.groups[groupKey{q.carbons, q.d, q.hydroxy}]
@@ -250,12 +261,7 @@ func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, erro
 		// structure only because the catalogue holds one isomer of it:
 		// say so, as for the bare labels of groups with several.
 		if a.DoubleBondCount > 0 && a.LumpedGeometry == GeometryUnknown && len(q.bonds) == 0 && q.omega == 0 && !q.hydroxy {
-			name := a.CommonName
-			if name == "" {
-				name = a.SystematicName
-			}
-			return Resolution{Acid: a, Assumption: fmt.Sprintf(
-				"label %q does not fix the isomer; read as %s (%s), the only one in the catalogue", label, a.ID, name)}, nil
+			return readAs(label, a, "the only one in the catalogue"), nil
 		}
 		return Resolution{Acid: a}, nil
 	case len(cands) == 0:
@@ -288,12 +294,7 @@ func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, erro
 	if len(q.bonds) == 0 && q.omega == 0 && q.geometry != Trans {
 		for _, a := range cands {
 			if a.Preferred {
-				name := a.CommonName
-				if name == "" {
-					name = a.SystematicName
-				}
-				return Resolution{Acid: a, Assumption: fmt.Sprintf(
-					"label %q does not fix the isomer; read as %s (%s), the common one", label, a.ID, name)}, nil
+				return readAs(label, a, "the common one"), nil
 			}
 		}
 	}
