@@ -114,7 +114,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	}
 	opt.Composition.Distribution = ExplicitTAGs
 	f := &Fat{opt: opt, composition: comp, full: &lazyComposition{}, warnings: warnings}
-	pr, outside := prepareAcids(acids, opt.Polymorph)
+	pr, outside := prepareAcids(acids, nil, opt.Polymorph)
 	bd := f.newBuilder(&pr)
 	species := make([]tagSpecies, 0, len(order))
 	for _, k := range order {

@@ -228,16 +228,17 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	}
 	f := &Fat{opt: opt, composition: comp, full: &lazyComposition{}}
 	f.warnings = append(f.warnings, comp.Warnings...)
-	pr, outside := prepareAcids(comp.Acids, opt.Polymorph)
+	pr, outside := prepareAcids(comp.Acids, comp.Total, opt.Polymorph)
 	outsideMass := f.build(pr)
-	f.finishWarnings(presentOnly(outside, comp), outsideMass)
+	f.finishWarnings(outside, outsideMass)
 	return f, nil
 }
 
 // prepareAcids computes the per-acid parts of the correlation for
 // polymorph p: ΔH and ΔS are sums over chains plus the intercepts and the
-// mismatch term. It also returns the acids outside the fitted data.
-func prepareAcids(acids []*chem.FattyAcid, p Polymorph) (prepared, []string) {
+// mismatch term. It also returns the acids outside the fitted data, those
+// with a share above the sum noise when shares is given (nil: all).
+func prepareAcids(acids []*chem.FattyAcid, shares []float64, p Polymorph) (prepared, []string) {
 	coef := fittedCoefficients
 	k := coef.For(p)
 	n := len(acids)
@@ -257,7 +258,10 @@ func prepareAcids(acids []*chem.FattyAcid, p Polymorph) (prepared, []string) {
 	for i, a := range acids {
 		c := chainOf(a)
 		chains[i] = c
-		if !c.inFit {
+		// An acid the fat holds no more than a trace of (a hardening
+		// product lists every acid the network can form, many at 0 %) is
+		// not worth naming.
+		if !c.inFit && (shares == nil || shares[i] > chem.SumNoise) {
 			outside = append(outside, a.ID)
 		}
 		hcOuter[i], scOuter[i] = part(structureOf(c, sat, sat), c.carbons)
@@ -275,22 +279,6 @@ func prepareAcids(acids []*chem.FattyAcid, p Polymorph) (prepared, []string) {
 	}
 	return prepared{chains: chains, hcOuter: hcOuter, scOuter: scOuter, hcSN2: hcSN2, scSN2: scSN2, gx: gx, gy: gy, k: k,
 		thetaK: coef.CompensationTemperatureK, overrides: resolveOverrides(acids, p)}, outside
-}
-
-// presentOnly drops from ids the acids the fat holds no more than a trace
-// of (a hardening product lists every acid the network can form, many at
-// 0 %), so the outside-fit warning names only acids that matter.
-func presentOnly(ids []string, comp *Composition) []string {
-	var out []string
-	for _, id := range ids {
-		for i, a := range comp.Acids {
-			if a.ID == id && comp.Total[i] > chem.SumNoise {
-				out = append(out, id)
-				break
-			}
-		}
-	}
-	return out
 }
 
 // finishWarnings adds the warnings about acids outside the fit and pooling.

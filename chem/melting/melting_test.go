@@ -775,3 +775,20 @@ func TestSolidFatContentRejectsBadInput(t *testing.T) {
 	require.NoError(t, err)
 	require.Equal(t, w, v)
 }
+
+// TestOutsideFitNamesOnlyPresentAcids: an acid listed at 0 % (as hardening
+// products list every acid the network can form) is not named in the
+// outside-fit warning; one the fat holds is.
+func TestOutsideFitNamesOnlyPresentAcids(t *testing.T) {
+	r, err := Melt(profileOf(t, acidPct{"16:0", 44}, acidPct{"18:1", 45}, acidPct{"18:2", 10}, acidPct{"20:1", 1},
+		acidPct{"22:6", 0}), Options{Composition: CompositionOptions{SN2: SN2Palm}})
+	require.NoError(t, err)
+	var msg string
+	for _, w := range r.Warnings {
+		if w.Code == WarnOutsideFit {
+			msg = w.Message
+		}
+	}
+	require.Contains(t, msg, "20:1")
+	require.NotContains(t, msg, "22:6")
+}
