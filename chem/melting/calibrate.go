@@ -140,14 +140,14 @@ func (m Measurements) validate() error {
 		bad.WithField(fmt.Sprintf("at most %d points", MaxTemperatures), "sfc_points")
 	}
 	for i, pt := range m.SFC {
-		if !(pt.TemperatureC >= MinTemperatureC && pt.TemperatureC <= MaxTemperatureC) {
+		if !inTemperatureRange(pt.TemperatureC) {
 			bad.WithField(fmt.Sprintf("temperature must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "sfc_points", i, "temperature_c")
 		}
 		if !(pt.SFCPercent >= 0 && pt.SFCPercent <= 100) {
 			bad.WithField("SFC must be from 0 to 100 %", "sfc_points", i, "sfc_percent")
 		}
 	}
-	if m.HasSlipMeltingPoint && !(m.SlipMeltingPointC >= MinTemperatureC && m.SlipMeltingPointC <= MaxTemperatureC) {
+	if m.HasSlipMeltingPoint && !inTemperatureRange(m.SlipMeltingPointC) {
 		bad.WithField(fmt.Sprintf("must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "slip_melting_point_c")
 	}
 	if len(bad.Fields) > 0 {

@@ -159,7 +159,7 @@ func (o Options) validate() error {
 		bad.WithField(fmt.Sprintf("at most %d temperatures", MaxTemperatures), "temperatures_c")
 	}
 	for i, t := range o.TemperaturesC {
-		if !(t >= MinTemperatureC && t <= MaxTemperatureC) {
+		if !inTemperatureRange(t) {
 			bad.WithField(fmt.Sprintf("must be a number from %g to %g °C", MinTemperatureC, MaxTemperatureC), "temperatures_c", i)
 		}
 	}

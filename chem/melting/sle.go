@@ -229,9 +229,15 @@ func (m *Mixture) SolidFatContent(model SolidModel, temperatureC float64, maxIte
 	return m.sfc(model, temperatureC+zeroCelsiusK, 0, maxIterations, m.newWorkspace())
 }
 
+// inTemperatureRange reports whether tC is a number inside the model's
+// range [MinTemperatureC, MaxTemperatureC] (NaN is not).
+func inTemperatureRange(tC float64) bool {
+	return tC >= MinTemperatureC && tC <= MaxTemperatureC
+}
+
 // checkTemperatureC accepts a temperature inside the model's range.
 func checkTemperatureC(tC float64) error {
-	if !(tC >= MinTemperatureC && tC <= MaxTemperatureC) {
+	if !inTemperatureRange(tC) {
 		return chem.Errorf(chem.KindInvalid, "temperature %g °C is outside the model's range %g to %g °C",
 			tC, MinTemperatureC, MaxTemperatureC).WithField("out of range", "temperature_c")
 	}
