@@ -556,11 +556,14 @@ func (net *network) warnings() []chem.Warning {
 		})
 	}
 	if len(net.conjugated) > 0 {
+		verb := "have"
+		if len(net.conjugated) == 1 {
+			verb = "has"
+		}
 		out = append(out, chem.Warning{
 			Code: chem.WarnMethodScope,
 			Message: fmt.Sprintf("%s %s conjugated double bonds; the model has no rate of its own for them and hardens "+
-				"them at the rate of the methylene-interrupted isomers", strings.Join(net.conjugated, ", "),
-				map[bool]string{true: "has", false: "have"}[len(net.conjugated) == 1]),
+				"them at the rate of the methylene-interrupted isomers", strings.Join(net.conjugated, ", "), verb),
 			Path: []any{"feed", "acids"},
 		})
 	}
