@@ -262,17 +262,11 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 				// The hardened sn-2 pools of sn2_profile fix sn-2 for the
 				// melting model: an estimate or full randomisation beside
 				// them would be ignored, so refuse them.
-				if body.Sn2Profile != nil {
-					var fields []FieldError
-					if mb.Sn2Estimate != "" {
-						fields = append(fields, FieldError{Pointer: "/melting/sn2_estimate", Reason: "not with sn2_profile, whose hardened pools fix sn-2"})
-					}
-					if mb.Distribution == "full_random" {
-						fields = append(fields, FieldError{Pointer: "/melting/distribution", Reason: "not with sn2_profile, whose hardened pools fix sn-2"})
-					}
-					if len(fields) > 0 {
-						return NewError(KindMalformed, "the request places sn-2 acids in more than one way", fields...)
-					}
+				fields := refused("not with sn2_profile, whose hardened pools fix sn-2",
+					field{body.Sn2Profile != nil && mb.Sn2Estimate != "", "/melting/sn2_estimate"},
+					field{body.Sn2Profile != nil && mb.Distribution == "full_random", "/melting/distribution"})
+				if len(fields) > 0 {
+					return errSn2TwoWays(fields)
 				}
 			}
 			mopt, _, err := toMeltingOptions(cat, &mb, feed, "/melting")

@@ -191,6 +191,30 @@ func meltingPathUnder(path []any, prefix string) []any {
 	return path
 }
 
+// field is one request field, by its pointer, and whether the client gave
+// it.
+type field struct {
+	given bool
+	ptr   string
+}
+
+// refused lists the given fields, each refused with reason.
+func refused(reason string, fields ...field) []FieldError {
+	var out []FieldError
+	for _, f := range fields {
+		if f.given {
+			out = append(out, FieldError{Pointer: f.ptr, Reason: reason})
+		}
+	}
+	return out
+}
+
+// errSn2TwoWays refuses fields that place sn-2 acids beside another way of
+// doing so.
+func errSn2TwoWays(fields []FieldError) error {
+	return NewError(KindMalformed, "the request places sn-2 acids in more than one way", fields...)
+}
+
 // toMeltingOptions converts the melting options shared by /v1/melting, the
 // calibration and the hardening forecast's melting target.
 func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Profile, prefix string) (melting.Options, []WarningBody, error) {
@@ -222,24 +246,16 @@ func toMeltingOptions(cat *chem.Catalogue, b *MeltingRequest, profile *chem.Prof
 	// of the body; only the options can sit under a prefix.)
 	var sn2Fields []FieldError
 	if opt.Composition.Distribution == melting.FullRandom {
-		for _, f := range []struct {
-			given bool
-			ptr   string
-		}{
-			{b.Sn2Estimate != "", prefix + "/sn2_estimate"},
-			{b.Sn2Profile != nil, "/sn2_profile"},
-			{b.Sn2EnrichmentFactors != nil, "/sn2_enrichment_factors"},
-		} {
-			if f.given {
-				sn2Fields = append(sn2Fields, FieldError{Pointer: f.ptr, Reason: "not with full_random, which places every acid at random"})
-			}
-		}
-	} else if b.Sn2Estimate != "" && (b.Sn2Profile != nil || b.Sn2EnrichmentFactors != nil) {
-		sn2Fields = append(sn2Fields, FieldError{Pointer: prefix + "/sn2_estimate",
-			Reason: "not with sn2_profile or sn2_enrichment_factors, which fix sn-2 themselves"})
+		sn2Fields = refused("not with full_random, which places every acid at random",
+			field{b.Sn2Estimate != "", prefix + "/sn2_estimate"},
+			field{b.Sn2Profile != nil, "/sn2_profile"},
+			field{b.Sn2EnrichmentFactors != nil, "/sn2_enrichment_factors"})
+	} else {
+		sn2Fields = refused("not with sn2_profile or sn2_enrichment_factors, which fix sn-2 themselves",
+			field{b.Sn2Estimate != "" && (b.Sn2Profile != nil || b.Sn2EnrichmentFactors != nil), prefix + "/sn2_estimate"})
 	}
 	if len(sn2Fields) > 0 {
-		return opt, nil, NewError(KindMalformed, "the request places sn-2 acids in more than one way", sn2Fields...)
+		return opt, nil, errSn2TwoWays(sn2Fields)
 	}
 	if b.Sn2Profile != nil {
 		sn2, err := toChemProfile(cat, b.Sn2Profile, "sn2_profile")
@@ -373,18 +389,9 @@ func prepareFat(cat *chem.Catalogue, body *MeltingRequest) (*melting.Fat, []Warn
 			FieldError{Pointer: "", Reason: "exactly one of profile and triacylglycerols is required"})
 	}
 	if body.Triacylglycerols != nil {
-		var fields []FieldError
-		for _, f := range []struct {
-			given bool
-			name  string
-		}{
-			{body.Distribution != "", "distribution"}, {body.Sn2Estimate != "", "sn2_estimate"},
-			{body.Sn2Profile != nil, "sn2_profile"}, {body.Sn2EnrichmentFactors != nil, "sn2_enrichment_factors"},
-		} {
-			if f.given {
-				fields = append(fields, FieldError{Pointer: "/" + f.name, Reason: "does not apply to a TAG composition (triacylglycerols)"})
-			}
-		}
+		fields := refused("does not apply to a TAG composition (triacylglycerols)",
+			field{body.Distribution != "", "/distribution"}, field{body.Sn2Estimate != "", "/sn2_estimate"},
+			field{body.Sn2Profile != nil, "/sn2_profile"}, field{body.Sn2EnrichmentFactors != nil, "/sn2_enrichment_factors"})
 		if len(fields) > 0 {
 			return nil, nil, NewError(KindMalformed, "distribution and sn-2 options do not apply to a TAG composition", fields...)
 		}
