@@ -14,20 +14,54 @@ import (
 	"github.com/labstack/echo/v4"
 )
 
-// decodeStrict reads the JSON body into v, rejecting unknown fields,
-// trailing data and anything that does not fit the Go types. It is the
-// second validation layer after the OpenAPI schema, and protects handlers
-// even when they are mounted without the validator.
-func decodeStrict(c echo.Context, v any) error {
+// ContextKeyBody is where the body-reading middleware leaves the request
+// body it read (a []byte), so that nothing reads it twice.
+const ContextKeyBody = "lipidsvc.body"
+
+// Body returns the request body: the bytes the body-reading middleware left
+// in the context, or, for a handler mounted without it, the body read now
+// and checked for duplicate members (the middleware's duty otherwise).
+func Body(c echo.Context) ([]byte, error) {
+	if b, ok := c.Get(ContextKeyBody).([]byte); ok {
+		return b, nil
+	}
 	body, err := io.ReadAll(c.Request().Body)
 	if err != nil {
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
-			return err
+			return nil, err
 		}
-		return NewError(KindMalformed, "the request body could not be read")
+		return nil, NewError(KindMalformed, "the request body could not be read")
 	}
-	if err := checkDuplicateKeys(body); err != nil {
+	if err := CheckDuplicateMembers(body); err != nil {
+		return nil, err
+	}
+	return body, nil
+}
+
+// CheckDuplicateMembers refuses a body that names a member of one object
+// twice, pointing at the second.
+func CheckDuplicateMembers(body []byte) error {
+	if ptr, dup := DuplicateMember(body); dup {
+		return NewError(KindMalformed, "the request names a field twice",
+			FieldError{Pointer: ptr, Reason: "duplicate member " + lastToken(ptr)})
+	}
+	return nil
+}
+
+// lastToken is the last reference token of a JSON pointer, unescaped.
+func lastToken(ptr string) string {
+	t := ptr[strings.LastIndexByte(ptr, '/')+1:]
+	return strings.ReplaceAll(strings.ReplaceAll(t, "~1", "/"), "~0", "~")
+}
+
+// decode reads the JSON body into v, once, rejecting unknown fields,
+// trailing data and anything that does not fit the Go types. It is the
+// strict layer after the contract's validation, and protects handlers even
+// when they are mounted without it.
+func decode(c echo.Context, v any) error {
+	body, err := Body(c)
+	if err != nil {
 		return err
 	}
 	dec := json.NewDecoder(bytes.NewReader(body))
@@ -78,63 +112,6 @@ func respond(c echo.Context, status int, v any) error {
 		return fmt.Errorf("encoding response: %w", err)
 	}
 	return c.JSONBlob(status, body)
-}
-
-// checkDuplicateKeys rejects an object that names the same member twice:
-// encoding/json would keep the last silently, and a value silently dropped
-// is a wrong certificate. Malformed JSON is left to the decoder's message.
-func checkDuplicateKeys(body []byte) error {
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.UseNumber()
-	var walk func(path []any) error
-	walk = func(path []any) error {
-		tok, err := dec.Token()
-		if err != nil {
-			return nil
-		}
-		switch tok {
-		case json.Delim('{'):
-			seen := map[string]bool{}
-			for dec.More() {
-				kt, err := dec.Token()
-				if err != nil {
-					return nil
-				}
-				key, _ := kt.(string)
-				p := append(append([]any{}, path...), key)
-				if seen[key] {
-					return NewError(KindMalformed, "the request names a field twice",
-						FieldError{Pointer: Pointer(p...), Reason: "duplicate member " + key})
-				}
-				seen[key] = true
-				if err := walk(p); err != nil {
-					return err
-				}
-			}
-			_, _ = dec.Token()
-		case json.Delim('['):
-			for i := 0; dec.More(); i++ {
-				if err := walk(append(append([]any{}, path...), i)); err != nil {
-					return err
-				}
-			}
-			_, _ = dec.Token()
-		}
-		return nil
-	}
-	return walk(nil)
-}
-
-// enumValue reads an enumerated field through its name table; an unknown
-// name is a malformed request pointing at the field. (The OpenAPI schema
-// rejects it first; this keeps handlers safe without the validator.)
-func enumValue[T any](m map[string]T, s, pointer, reason string) (T, error) {
-	v, ok := m[s]
-	if !ok {
-		var zero T
-		return zero, NewError(KindMalformed, "unknown value", FieldError{Pointer: pointer, Reason: reason})
-	}
-	return v, nil
 }
 
 // Integer is a request integer. JSON Schema's "integer" (and so the

@@ -27,9 +27,14 @@ const (
 	KindTooLarge
 	// KindUnsupportedMedia: the body is not JSON.
 	KindUnsupportedMedia
-	// KindUnprocessable: the request matches the contract but breaks a
-	// domain rule.
-	KindUnprocessable
+	// KindInvalidInput: the request matches the contract but breaks a
+	// domain rule (an unknown acid label, a profile whose sum is off).
+	KindInvalidInput
+	// KindOutsideModel: the request is valid but asks for something outside
+	// what the model can answer (a target above the feed, nothing to harden).
+	KindOutsideModel
+	// KindNoConvergence: a solver hit its iteration cap.
+	KindNoConvergence
 	// KindNotFound: no such route.
 	KindNotFound
 	// KindMethodNotAllowed: the route exists for other methods.
@@ -57,7 +62,9 @@ var problemTypes = map[Kind]struct {
 	KindMalformed:        {http.StatusBadRequest, "malformed-request", "The request does not match the contract"},
 	KindTooLarge:         {http.StatusRequestEntityTooLarge, "body-too-large", "The request body is too large"},
 	KindUnsupportedMedia: {http.StatusUnsupportedMediaType, "unsupported-media-type", "The request body must be application/json"},
-	KindUnprocessable:    {http.StatusUnprocessableEntity, "unprocessable", "The request cannot be computed"},
+	KindInvalidInput:     {http.StatusUnprocessableEntity, "invalid-input", "The request breaks a rule of the science"},
+	KindOutsideModel:     {http.StatusUnprocessableEntity, "outside-model-domain", "The request is outside what the model can answer"},
+	KindNoConvergence:    {http.StatusUnprocessableEntity, "no-convergence", "The solver did not converge"},
 	KindNotFound:         {http.StatusNotFound, "not-found", "No such resource"},
 	KindMethodNotAllowed: {http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed on this resource"},
 	KindUnavailable:      {http.StatusServiceUnavailable, "unavailable", "The service could not answer in time"},
@@ -189,9 +196,22 @@ func classify(err error) *Error {
 	return &Error{Kind: KindInternal, Detail: "internal error", Cause: err}
 }
 
-// fromChem maps a domain error; its field paths become JSON pointers.
+// chemKinds maps the science's error kinds onto the API's.
+var chemKinds = map[chem.ErrorKind]Kind{
+	chem.KindMalformed:     KindMalformed,
+	chem.KindInvalid:       KindInvalidInput,
+	chem.KindOutOfDomain:   KindOutsideModel,
+	chem.KindNoConvergence: KindNoConvergence,
+}
+
+// fromChem maps a domain error; its field paths, which name the request's
+// fields, become JSON pointers.
 func fromChem(ce *chem.Error) *Error {
-	e := &Error{Kind: KindUnprocessable, Detail: ce.Message}
+	kind, ok := chemKinds[ce.Kind]
+	if !ok {
+		kind = KindInvalidInput
+	}
+	e := &Error{Kind: kind, Detail: ce.Message}
 	if ce.Kind == chem.KindNoConvergence {
 		e.Detail = "the solver did not converge: " + ce.Message
 	}
@@ -202,42 +222,6 @@ func fromChem(ce *chem.Error) *Error {
 		e.Fields = append(e.Fields, FieldError{Pointer: "", Reason: ce.Message, Suggestions: ce.Suggestions})
 	}
 	return e
-}
-
-// mapErrorPaths returns err with every chem field path passed through f,
-// which translates the science's vocabulary into the request's fields.
-// Errors that are not *chem.Error pass unchanged.
-func mapErrorPaths(err error, f func([]any) []any) error {
-	ce, ok := chem.AsError(err)
-	if !ok {
-		return err
-	}
-	out := *ce
-	out.Fields = make([]chem.FieldError, len(ce.Fields))
-	for i, fe := range ce.Fields {
-		fe.Path = f(fe.Path)
-		out.Fields[i] = fe
-	}
-	return &out
-}
-
-// mapWarningPaths does the same for warnings.
-func mapWarningPaths(ws []chem.Warning, f func([]any) []any) []chem.Warning {
-	out := make([]chem.Warning, len(ws))
-	for i, w := range ws {
-		w.Path = f(w.Path)
-		out[i] = w
-	}
-	return out
-}
-
-// withPrefix returns err with the chem field paths under prefix, so that a
-// profile's errors point into the request body where the profile sits.
-func withPrefix(err error, prefix ...any) error {
-	if ce, ok := chem.AsError(err); ok {
-		return ce.Prefix(prefix...)
-	}
-	return err
 }
 
 // Pointer builds an RFC 6901 JSON pointer from path elements.

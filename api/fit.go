@@ -1,7 +1,6 @@
 package api
 
 import (
-	"fmt"
 	"math"
 	"net/http"
 
@@ -70,82 +69,48 @@ func finiteOrNil(v float64) *float64 {
 	return &v
 }
 
-var fitPath = renameFirst(map[string]string{"free": "free_parameters"})
+// input copies the request into the science's shape.
+func (b *FitRequest) input() hardening.FitInput {
+	in := hardening.FitInput{
+		Feed:           b.Feed.input(),
+		Observations:   make([]hardening.FitObservationInput, len(b.Observations)),
+		FreeParameters: b.FreeParameters,
+		MaxIterations:  intPtr(b.MaxIterations),
+	}
+	if b.Initial != nil {
+		in.Initial = b.Initial.input()
+	}
+	for i, o := range b.Observations {
+		in.Observations[i] = hardening.FitObservationInput{Profile: o.Profile.input(), IodineValue: o.IodineValue}
+	}
+	return in
+}
 
 func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		var body FitRequest
-		if err := decodeStrict(c, &body); err != nil {
+		if err := decode(c, &body); err != nil {
 			return err
 		}
-		feed, err := toChemProfile(cat, body.Feed, "feed")
+		res, err := hardening.Fit(c.Request().Context(), cat, body.input())
 		if err != nil {
 			return err
-		}
-		warnings := toWarnings(feed.Warnings, "feed")
-		obs := make([]hardening.Observation, len(body.Observations))
-		computed := make(map[int]bool) // observations whose iodine value came from the profile
-		for i, o := range body.Observations {
-			p, err := toChemProfile(cat, o.Profile, "observations", i, "profile")
-			if err != nil {
-				return err
-			}
-			warnings = append(warnings, toWarnings(p.Warnings, "observations", i, "profile")...)
-			obs[i] = hardening.Observation{Profile: p}
-			if o.IodineValue != nil {
-				obs[i].IodineValue = *o.IodineValue
-			} else {
-				obs[i].IodineValue = chem.IodineValue(p, chem.MaterialTAG)
-				computed[i] = true
-				warnings = append(warnings, WarningBody{Code: "iodine_value_computed",
-					Message: fmt.Sprintf("no iodine value given; the profile's exact iodine value %.2f was used", obs[i].IodineValue),
-					Pointer: Pointer("observations", i, "iodine_value")})
-			}
-		}
-		req := hardening.NewFitRequest(feed, obs)
-		if body.Initial != nil {
-			if req.Initial, _, err = toCatalyst(body.Initial, "/initial"); err != nil {
-				return err
-			}
-		}
-		for i, name := range body.FreeParameters {
-			p, ok := hardening.ParseParameter(name)
-			if !ok {
-				return NewError(KindMalformed, "unknown parameter", FieldError{Pointer: Pointer("free_parameters", i), Reason: "not a catalyst parameter"})
-			}
-			req.Free = append(req.Free, p)
-		}
-		if body.MaxIterations != nil {
-			req.MaxIterations = int(*body.MaxIterations)
-		}
-		res, err := hardening.Fit(c.Request().Context(), cat, req)
-		if err != nil {
-			// A computed iodine value is the profile's: point there, at
-			// what the client sent.
-			return mapErrorPaths(err, func(path []any) []any {
-				if len(path) == 3 && path[0] == "observations" && path[2] == "iodine_value" {
-					if i, ok := path[1].(int); ok && computed[i] {
-						return []any{"observations", i, "profile"}
-					}
-				}
-				return fitPath(path)
-			})
 		}
 		rec.Calculation("hardening_fit")
 		rec.SolverIterations("hardening_fit", res.Iterations)
-		warnings = append(warnings, toWarnings(mapWarningPaths(res.Warnings, fitPath))...)
-		return respond(c, http.StatusOK, fromFit(res, warnings))
+		return respond(c, http.StatusOK, fromFit(res))
 	}
 }
 
-func fromFit(r *hardening.FitResult, warnings []WarningBody) FitResponse {
+func fromFit(a *hardening.FitAnswer) FitResponse {
+	r := a.FitResult
 	out := FitResponse{
 		Catalyst:            fromCatalyst(r.Catalyst),
 		RMSPercentagePoints: r.RMSPercentagePoints,
 		RSquared:            finiteOrNil(r.RSquared),
 		Iterations:          r.Iterations,
 		Evaluations:         r.Evaluations,
-		Warnings:            warnings,
+		Warnings:            toWarnings(a.Warnings),
 	}
 	for _, p := range r.Parameters {
 		out.Parameters = append(out.Parameters, FitParameter{

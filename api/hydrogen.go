@@ -48,11 +48,6 @@ type HydrogenDemandRequest struct {
 	StartTemperatureC *float64           `json:"start_temperature_c,omitempty"`
 }
 
-// DefaultStartTemperatureC is the oil temperature at which hydrogen is
-// admitted when the request does not say: a common start for nickel
-// hardening (common practice, no source).
-const DefaultStartTemperatureC = 150.0
-
 // HydrogenAmounts is an amount of pure H2.
 type HydrogenAmounts struct {
 	Mol      float64 `json:"mol"`
@@ -135,170 +130,40 @@ type HydrogenDemandResponse struct {
 	Warnings                 []WarningBody      `json:"warnings"`
 }
 
-var gasReferences = map[string]hardening.GasReferenceKind{
-	"":               hardening.GasRef0C1atm,
-	"0c_101.325kpa":  hardening.GasRef0C1atm,
-	"0c_100kpa":      hardening.GasRef0C100kPa,
-	"15c_101.325kpa": hardening.GasRef15C1atm,
-	"20c_101.325kpa": hardening.GasRef20C1atm,
-	"60f_14.696psia": hardening.GasRef60F14696psia,
-}
-
-var gasReferenceNames = map[hardening.GasReferenceKind]string{
-	hardening.GasRef0C1atm:       "0c_101.325kpa",
-	hardening.GasRef0C100kPa:     "0c_100kpa",
-	hardening.GasRef15C1atm:      "15c_101.325kpa",
-	hardening.GasRef20C1atm:      "20c_101.325kpa",
-	hardening.GasRef60F14696psia: "60f_14.696psia",
-	hardening.GasRefCustom:       "custom",
-}
-
-// toGasReference reads the reference state; a custom one needs temperature
-// and pressure, and only a custom one may carry them.
-func toGasReference(g *GasSupplyBody) (hardening.GasReference, error) {
-	if g == nil {
-		return hardening.StandardGasReference(hardening.GasRef0C1atm)
+// input copies the request into the science's shape.
+func (b *HydrogenDemandRequest) input() hardening.HydrogenDemandInput {
+	in := hardening.HydrogenDemandInput{
+		IodineValueBasis:  b.IodineValueBasis,
+		BatchMassKg:       b.BatchMassKg,
+		StartTemperatureC: b.StartTemperatureC,
 	}
-	if g.Reference == "custom" {
-		var fields []FieldError
-		if g.TemperatureC == nil {
-			fields = append(fields, FieldError{Pointer: "/gas/temperature_c", Reason: "required with reference custom"})
-		}
-		if g.PressureKPa == nil {
-			fields = append(fields, FieldError{Pointer: "/gas/pressure_kpa", Reason: "required with reference custom"})
-		}
-		if len(fields) > 0 {
-			return hardening.GasReference{}, NewError(KindMalformed, "a custom gas reference needs a temperature and a pressure", fields...)
-		}
-		ref, err := hardening.CustomGasReference(*g.TemperatureC+chem.ZeroCelsiusK, *g.PressureKPa*1000)
-		if err != nil {
-			return ref, NewError(KindUnprocessable, "the custom gas reference state is not physical",
-				FieldError{Pointer: "/gas", Reason: "temperature must be above absolute zero and pressure above zero"})
-		}
-		return ref, nil
+	if f := b.Feed; f != nil {
+		in.Feed = &hardening.FeedInput{IodineValue: f.IodineValue, Profile: f.Profile.input()}
 	}
-	kind, ok := gasReferences[g.Reference]
-	if !ok {
-		return hardening.GasReference{}, NewError(KindMalformed, "unknown gas reference state",
-			FieldError{Pointer: "/gas/reference", Reason: "not a known reference state"})
+	if t := b.Target; t != nil {
+		in.Target = &hardening.IodineValueTargetInput{IodineValue: t.IodineValue, IodineValueDrop: t.IodineValueDrop}
 	}
-	if g.TemperatureC != nil || g.PressureKPa != nil {
-		return hardening.GasReference{}, NewError(KindMalformed, "temperature and pressure go only with reference custom",
-			FieldError{Pointer: "/gas/reference", Reason: "set reference to custom to give a temperature and pressure"})
-	}
-	return hardening.StandardGasReference(kind)
-}
-
-var iodineValueBases = map[string]hardening.IodineValueBasis{
-	"": hardening.FeedBasis, "feed": hardening.FeedBasis, "product": hardening.ProductBasis,
-}
-
-func toIodineValueBasis(s string) (hardening.IodineValueBasis, error) {
-	return enumValue(iodineValueBases, s, "/iodine_value_basis", "must be feed or product")
-}
-
-// feedIodineValue returns the feed's iodine value, computing it from the
-// profile (as triacylglycerols) when one is given.
-func feedIodineValue(cat *chem.Catalogue, f *HardeningFeed) (float64, []chem.Warning, error) {
-	switch {
-	case f == nil || (f.IodineValue == nil && f.Profile == nil) || (f.IodineValue != nil && f.Profile != nil):
-		return 0, nil, NewError(KindMalformed, "give the feed as an iodine value or a profile",
-			FieldError{Pointer: "/feed", Reason: "exactly one of iodine_value and profile is required"})
-	case f.IodineValue != nil:
-		return *f.IodineValue, nil, nil
-	}
-	p, err := toChemProfile(cat, f.Profile, "feed", "profile")
-	if err != nil {
-		return 0, nil, err
-	}
-	return chem.IodineValue(p, chem.MaterialTAG), p.Warnings, nil
-}
-
-func toHardeningTarget(t *IodineValueTarget) (hardening.Target, error) {
-	switch {
-	case t == nil || (t.IodineValue == nil) == (t.IodineValueDrop == nil):
-		return hardening.Target{}, NewError(KindMalformed, "give the target as a final iodine value or an iodine-value drop",
-			FieldError{Pointer: "/target", Reason: "exactly one of iodine_value and iodine_value_drop is required"})
-	case t.IodineValue != nil:
-		return hardening.FinalIodineValue(*t.IodineValue), nil
-	default:
-		return hardening.IodineValueDrop(*t.IodineValueDrop), nil
-	}
-}
-
-func valueOr(p *float64, def float64) float64 {
-	if p == nil {
-		return def
-	}
-	return *p
-}
-
-// toHydrogenRequest converts the body; percent inputs become fractions.
-func toHydrogenRequest(cat *chem.Catalogue, b *HydrogenDemandRequest) (hardening.HydrogenRequest, []chem.Warning, error) {
-	feedIV, warnings, err := feedIodineValue(cat, b.Feed)
-	if err != nil {
-		return hardening.HydrogenRequest{}, nil, err
-	}
-	target, err := toHardeningTarget(b.Target)
-	if err != nil {
-		return hardening.HydrogenRequest{}, nil, err
-	}
-	basis, err := toIodineValueBasis(b.IodineValueBasis)
-	if err != nil {
-		return hardening.HydrogenRequest{}, nil, err
-	}
-	ref, err := toGasReference(b.Gas)
-	if err != nil {
-		return hardening.HydrogenRequest{}, nil, err
-	}
-	req := hardening.NewHydrogenRequest(feedIV, target, b.BatchMassKg, valueOr(b.StartTemperatureC, DefaultStartTemperatureC))
-	req.Basis = basis
-	req.Gas.Reference = ref
 	if g := b.Gas; g != nil {
-		req.Gas.Purity = valueOr(g.PurityPercent, 100*hardening.DefaultPurity) / 100
-		req.Gas.LossFraction = valueOr(g.LossPercent, 100*hardening.DefaultLossFraction) / 100
+		in.Gas = (*hardening.GasInput)(g)
 	}
 	if h := b.Heat; h != nil {
-		req.Heat.ReactionEnthalpyKJPerMol = valueOr(h.ReactionEnthalpyKJPerMol, req.Heat.ReactionEnthalpyKJPerMol)
-		req.Heat.HeatCapacity.InterceptJPerGK = valueOr(h.HeatCapacityInterceptKJPerKgK, req.Heat.HeatCapacity.InterceptJPerGK)
-		req.Heat.HeatCapacity.SlopeJPerGK2 = valueOr(h.HeatCapacitySlopeKJPerKgK2, req.Heat.HeatCapacity.SlopeJPerGK2)
+		in.Heat = (*hardening.HeatInput)(h)
 	}
-	return req, warnings, nil
-}
-
-// hydrogenPaths are the chem field paths of the hydrogen calculation that
-// differ from the request's JSON shape.
-var hydrogenPaths = map[string][]any{
-	"/gas/loss_fraction": {"gas", "loss_percent"},
-	"/gas/purity":        {"gas", "purity_percent"},
-	"/heat/heat_capacity/intercept_j_per_g_k": {"heat", "heat_capacity_intercept_kj_per_kg_k"},
-	"/heat/heat_capacity/slope_j_per_g_k2":    {"heat", "heat_capacity_slope_kj_per_kg_k2"},
-	"/heat/heat_capacity":                     {"heat"},
-}
-
-func hydrogenPath(path []any) []any {
-	if p, ok := hydrogenPaths[Pointer(path...)]; ok {
-		return p
-	}
-	return path
+	return in
 }
 
 func handleHydrogenDemand(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		var body HydrogenDemandRequest
-		if err := decodeStrict(c, &body); err != nil {
+		if err := decode(c, &body); err != nil {
 			return err
 		}
-		req, warnings, err := toHydrogenRequest(cat, &body)
+		res, err := hardening.HydrogenDemand(cat, body.input())
 		if err != nil {
 			return err
-		}
-		res, err := hardening.HydrogenDemand(req)
-		if err != nil {
-			return mapErrorPaths(err, hydrogenPath)
 		}
 		rec.Calculation("hydrogen_demand")
-		return respond(c, http.StatusOK, fromHydrogenResult(req, res, toWarnings(warnings, "feed", "profile")))
+		return respond(c, http.StatusOK, fromHydrogenResult(res))
 	}
 }
 
@@ -318,14 +183,15 @@ func fromGasAmounts(s hardening.HydrogenSupply) GasAmounts {
 
 func fromGasReference(r hardening.GasReference) GasReferenceBody {
 	return GasReferenceBody{
-		Reference:            gasReferenceNames[r.Kind()],
+		Reference:            r.Kind().String(),
 		TemperatureC:         r.TemperatureK() - chem.ZeroCelsiusK,
 		PressureKPa:          r.PressurePa() / 1000,
 		MolarVolumeM3PerKmol: 1000 * r.MolarVolumeM3PerMol(),
 	}
 }
 
-func fromHydrogenResult(req hardening.HydrogenRequest, r hardening.HydrogenResult, warnings []WarningBody) HydrogenDemandResponse {
+func fromHydrogenResult(a *hardening.HydrogenDemandAnswer) HydrogenDemandResponse {
+	r, req := a.HydrogenResult, a.Request
 	return HydrogenDemandResponse{
 		HydrogenKgPerTonne:       r.ChemicalPerTonne.Kg,
 		HydrogenKg:               r.ChemicalPerBatch.Kg,
@@ -356,13 +222,13 @@ func fromHydrogenResult(req hardening.HydrogenRequest, r hardening.HydrogenResul
 		Parameters: HydrogenParameters{
 			BatchMassKg:                   req.BatchMassKg,
 			StartTemperatureC:             req.StartTemperatureC,
-			PurityPercent:                 100 * req.Gas.Purity,
-			LossPercent:                   100 * req.Gas.LossFraction,
+			PurityPercent:                 req.Gas.PurityPercent,
+			LossPercent:                   req.Gas.LossPercent,
 			ReactionEnthalpyKJPerMol:      req.Heat.ReactionEnthalpyKJPerMol,
 			HeatCapacityInterceptKJPerKgK: req.Heat.HeatCapacity.InterceptJPerGK,
 			HeatCapacitySlopeKJPerKgK2:    req.Heat.HeatCapacity.SlopeJPerGK2,
 		},
-		Cautions: hardeningCautions,
-		Warnings: warnings,
+		Cautions: hardening.Cautions(),
+		Warnings: toWarnings(a.Warnings),
 	}
 }

@@ -25,49 +25,48 @@ type WarningBody struct {
 	Pointer string `json:"pointer,omitempty"`
 }
 
-var basisNames = map[string]chem.Basis{
-	"":                    chem.BasisFAMEWeight,
-	"fame_weight_percent": chem.BasisFAMEWeight,
-	"acid_weight_percent": chem.BasisAcidWeight,
-	"mole_percent":        chem.BasisMole,
-}
-
-// toChemProfile converts and checks a profile sitting at the JSON pointer
-// given by path (for example "profile").
-func toChemProfile(cat *chem.Catalogue, b *ProfileBody, path ...any) (*chem.Profile, error) {
+// input copies a profile into the science's request shape; nil stays nil
+// (the science refuses a missing profile where it is required).
+func (b *ProfileBody) input() *chem.ProfileInput {
 	if b == nil {
-		return nil, NewError(KindMalformed, "the profile is missing", FieldError{Pointer: Pointer(path...), Reason: "required"})
+		return nil
 	}
-	basis, err := enumValue(basisNames, b.Basis, Pointer(append(path, "basis")...),
-		"must be fame_weight_percent, acid_weight_percent or mole_percent")
-	if err != nil {
-		return nil, err
-	}
-	tol := chem.DefaultSumTolerance
-	if b.SumTolerancePercent != nil {
-		tol = *b.SumTolerancePercent
-	}
-	entries := make([]chem.Entry, len(b.Acids))
+	in := &chem.ProfileInput{Basis: b.Basis, SumTolerancePercent: b.SumTolerancePercent, Acids: make([]chem.Entry, len(b.Acids))}
 	for i, e := range b.Acids {
-		entries[i] = chem.Entry{Label: e.Acid, Percent: e.Percent}
+		in.Acids[i] = chem.Entry(e)
 	}
-	p, err := chem.NewProfile(cat, basis, entries, tol)
-	if err != nil {
-		return nil, withPrefix(err, path...)
-	}
-	return p, nil
+	return in
 }
 
-// toWarnings converts chem warnings; those with a path point into the
-// request under prefix.
-func toWarnings(ws []chem.Warning, prefix ...any) []WarningBody {
-	out := make([]WarningBody, 0, len(ws))
-	for _, w := range ws {
-		wb := WarningBody{Code: w.Code, Message: w.Message}
-		if len(w.Path) > 0 {
-			wb.Pointer = Pointer(append(append([]any{}, prefix...), w.Path...)...)
-		}
-		out = append(out, wb)
+// toWarnings converts the science's warnings, whose paths already name the
+// request's fields. It never returns nil: the contract's warnings is a list.
+func toWarnings(ws []chem.Warning) []WarningBody {
+	out := make([]WarningBody, len(ws))
+	for i, w := range ws {
+		out[i] = WarningBody{Code: w.Code, Message: w.Message, Pointer: Pointer(w.Path...)}
 	}
 	return out
+}
+
+// ProfileOut is a composition in the profile shape.
+type ProfileOut struct {
+	Basis string      `json:"basis"`
+	Acids []EntryBody `json:"acids"`
+}
+
+func profileOut(p *chem.Profile) ProfileOut {
+	out := ProfileOut{Basis: p.Basis.String(), Acids: make([]EntryBody, len(p.Components))}
+	for i, c := range p.Components {
+		out.Acids[i] = EntryBody{Acid: c.Acid.ID, Percent: c.Percent}
+	}
+	return out
+}
+
+// intPtr copies an optional request integer.
+func intPtr(n *Integer) *int {
+	if n == nil {
+		return nil
+	}
+	v := int(*n)
+	return &v
 }

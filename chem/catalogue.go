@@ -6,11 +6,15 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
+	"sync/atomic"
 )
 
 // Catalogue is the set of fatty acids the service knows, with lookup by
-// canonical ID and by name. It is immutable after construction and safe for
-// concurrent use.
+// canonical ID and by name. Its acids never change after construction and
+// it is safe for concurrent use; the only thing that changes is a bounded
+// memo of labels already read (see [LabelCacheSize]), which returns exactly
+// what reading the label again would.
 type Catalogue struct {
 	acids  []*FattyAcid
 	byID   map[string]*FattyAcid
@@ -19,6 +23,33 @@ type Catalogue struct {
 	groups map[groupKey][]*FattyAcid
 	// names[i] are the normalised names of acids[i], for suggestions.
 	names [][]string
+	// labels memoises successful label readings, keyed by the label as
+	// given: a laboratory's exports repeat the same spellings, and reading
+	// one costs far more than the chemistry it feeds.
+	labels     sync.Map // string → Resolution
+	labelCount atomic.Int64
+}
+
+// LabelCacheSize bounds the memo of label readings a Catalogue keeps. Past
+// it new labels are read every time, so a stream of distinct labels cannot
+// grow the memory of a long-running process.
+const LabelCacheSize = 8192
+
+func (c *Catalogue) cachedLabel(label string) (Resolution, bool) {
+	r, ok := c.labels.Load(label)
+	if !ok {
+		return Resolution{}, false
+	}
+	return r.(Resolution), true
+}
+
+func (c *Catalogue) rememberLabel(label string, r Resolution) {
+	if c.labelCount.Load() >= LabelCacheSize {
+		return
+	}
+	if _, loaded := c.labels.LoadOrStore(label, r); !loaded {
+		c.labelCount.Add(1)
+	}
 }
 
 type groupKey struct {

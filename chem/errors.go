@@ -19,6 +19,12 @@ const (
 	KindOutOfDomain
 	// KindNoConvergence: an iterative solver hit its iteration cap.
 	KindNoConvergence
+	// KindMalformed: the input does not have the shape the entry point
+	// takes: a required part is missing, a name is not one of the allowed
+	// values, or parts that exclude each other are given together. An
+	// adapter that validates its own contract first rarely sees it; a
+	// caller of the package without one gets the same answer.
+	KindMalformed
 )
 
 // String names the kind for logs and tests.
@@ -30,6 +36,8 @@ func (k ErrorKind) String() string {
 		return "out_of_domain"
 	case KindNoConvergence:
 		return "no_convergence"
+	case KindMalformed:
+		return "malformed"
 	default:
 		return "unknown"
 	}
@@ -97,4 +105,119 @@ func AsError(err error) (*Error, bool) {
 		return ce, true
 	}
 	return nil, false
+}
+
+// FieldErrors gathers the problems of one input so that a single error
+// names them all. The zero value is ready to use.
+type FieldErrors struct {
+	fields []FieldError
+	kinds  []ErrorKind
+}
+
+// Add records one problem of the given kind at path.
+func (e *FieldErrors) Add(kind ErrorKind, reason string, path ...any) {
+	e.fields = append(e.fields, FieldError{Path: path, Reason: reason})
+	e.kinds = append(e.kinds, kind)
+}
+
+// AddSuggested records one problem with suggestions (known values close to
+// the rejected one, best first).
+func (e *FieldErrors) AddSuggested(kind ErrorKind, reason string, suggestions []string, path ...any) {
+	e.fields = append(e.fields, FieldError{Path: path, Reason: reason, Suggestions: suggestions})
+	e.kinds = append(e.kinds, kind)
+}
+
+// Malformed records a problem of kind KindMalformed.
+func (e *FieldErrors) Malformed(reason string, path ...any) { e.Add(KindMalformed, reason, path...) }
+
+// Invalid records a problem of kind KindInvalid.
+func (e *FieldErrors) Invalid(reason string, path ...any) { e.Add(KindInvalid, reason, path...) }
+
+// OutOfDomain records a problem of kind KindOutOfDomain.
+func (e *FieldErrors) OutOfDomain(reason string, path ...any) { e.Add(KindOutOfDomain, reason, path...) }
+
+// Len is the number of problems recorded.
+func (e *FieldErrors) Len() int { return len(e.fields) }
+
+// Merge adds the field errors of err (a *Error; anything else is ignored)
+// under prefix and reports whether err was one.
+func (e *FieldErrors) Merge(err error, prefix ...any) bool {
+	ce, ok := AsError(err)
+	if !ok {
+		return false
+	}
+	ce = ce.Prefix(prefix...)
+	if len(ce.Fields) == 0 {
+		e.AddSuggested(ce.Kind, ce.Message, ce.Suggestions, prefix...)
+		return true
+	}
+	for _, f := range ce.Fields {
+		e.AddSuggested(ce.Kind, f.Reason, f.Suggestions, f.Path...)
+	}
+	return true
+}
+
+// Err returns nil when nothing was recorded, and otherwise one *Error
+// listing every problem. Its kind is the most basic one recorded:
+// malformed before invalid before outside the model's domain before no
+// convergence, because a client must mend the shape of a request before its
+// values mean anything. Its message is summary (when not empty) with the
+// one problem's reason or the number of problems.
+func (e *FieldErrors) Err(summary string) error {
+	if len(e.fields) == 0 {
+		return nil
+	}
+	kind := e.kinds[0]
+	for _, k := range e.kinds[1:] {
+		if kindRank(k) < kindRank(kind) {
+			kind = k
+		}
+	}
+	var msg string
+	switch {
+	case len(e.fields) == 1 && summary == "":
+		msg = e.fields[0].Reason
+	case len(e.fields) == 1:
+		msg = summary + ": " + e.fields[0].Reason
+	case summary == "":
+		msg = fmt.Sprintf("the input has %d problems", len(e.fields))
+	default:
+		msg = fmt.Sprintf("%s (%d problems)", summary, len(e.fields))
+	}
+	return &Error{Kind: kind, Message: msg, Fields: append([]FieldError(nil), e.fields...)}
+}
+
+func kindRank(k ErrorKind) int {
+	switch k {
+	case KindMalformed:
+		return 0
+	case KindInvalid:
+		return 1
+	case KindOutOfDomain:
+		return 2
+	default:
+		return 3
+	}
+}
+
+// PrefixError returns err with its field paths under prefix when it is a
+// *Error, and err unchanged otherwise (a context's error, say).
+func PrefixError(err error, prefix ...any) error {
+	if ce, ok := AsError(err); ok && len(prefix) > 0 {
+		return ce.Prefix(prefix...)
+	}
+	return err
+}
+
+// PrefixWarnings returns the warnings with their paths under prefix; a
+// warning without a path stays without one.
+func PrefixWarnings(ws []Warning, prefix ...any) []Warning {
+	out := make([]Warning, len(ws))
+	for i, w := range ws {
+		if len(w.Path) > 0 && len(prefix) > 0 {
+			w.Path = append(append(make([]any, 0, len(prefix)+len(w.Path)), prefix...), w.Path...)
+		}
+		out[i] = w
+	}
+	return out
 }

@@ -84,7 +84,21 @@ func (c *Catalogue) Resolve(label string) (Resolution, error) {
 }
 
 // resolve is Resolve with the (costlier) search for suggestions optional.
+// Successful readings are memoised; failures are not (they are rare in
+// steady traffic, and their suggestions depend on suggest).
 func (c *Catalogue) resolve(label string, suggest bool) (Resolution, error) {
+	if r, ok := c.cachedLabel(label); ok {
+		return r, nil
+	}
+	r, err := c.read(label, suggest)
+	if err == nil {
+		c.rememberLabel(label, r)
+	}
+	return r, err
+}
+
+// read reads one label without the memo.
+func (c *Catalogue) read(label string, suggest bool) (Resolution, error) {
 	n := normaliseName(label)
 	if n == "" {
 		return Resolution{}, Errorf(KindInvalid, "empty fatty-acid label")

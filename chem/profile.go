@@ -43,10 +43,71 @@ const SumNoise = 1e-9
 // maxSuggestedLabels is how many bad labels of one profile get suggestions.
 const maxSuggestedLabels = 10
 
-// Entry is one line of a laboratory profile as received.
+// Entry is one line of a laboratory profile as received: the label as the
+// laboratory wrote it (field "acid") and its share (field "percent").
 type Entry struct {
-	Label   string
+	Acid    string
 	Percent float64
+}
+
+// ProfileInput is a fatty-acid profile in the shape a request carries it
+// (the contract's Profile object). Field paths in errors and warnings are
+// relative to it: "basis", "sum_tolerance_percent", "acids", i, "acid" or
+// "percent".
+type ProfileInput struct {
+	// Basis names what the percentages are: "fame_weight_percent" (also
+	// ""), "acid_weight_percent" or "mole_percent". See [Basis].
+	Basis string
+	// SumTolerancePercent is how far, in percentage points, the sum may
+	// stray from 100 and still be scaled; nil means DefaultSumTolerance.
+	SumTolerancePercent *float64
+	// Acids are the profile's lines.
+	Acids []Entry
+}
+
+// ParseBasis reads a basis by its contract name; "" is the default,
+// BasisFAMEWeight.
+func ParseBasis(s string) (Basis, bool) {
+	switch s {
+	case "", "fame_weight_percent":
+		return BasisFAMEWeight, true
+	case "acid_weight_percent":
+		return BasisAcidWeight, true
+	case "mole_percent":
+		return BasisMole, true
+	}
+	return 0, false
+}
+
+// ReadProfile reads, checks and normalises a profile given in the request's
+// shape; see [NewProfile] for the rules. A nil input is a KindMalformed
+// error with an empty path (the caller's field for the profile). Paths are
+// relative to the profile.
+func (c *Catalogue) ReadProfile(in *ProfileInput) (*Profile, error) {
+	if in == nil {
+		return nil, Errorf(KindMalformed, "the profile is missing").WithField("required")
+	}
+	basis, ok := ParseBasis(in.Basis)
+	if !ok {
+		return nil, Errorf(KindMalformed, "unknown basis").
+			WithField("must be fame_weight_percent, acid_weight_percent or mole_percent", "basis")
+	}
+	tol := DefaultSumTolerance
+	if in.SumTolerancePercent != nil {
+		tol = *in.SumTolerancePercent
+	}
+	return NewProfile(c, basis, in.Acids, tol)
+}
+
+// ReadProfileAt is ReadProfile for a profile that sits at path in the
+// caller's input: errors and warnings point there.
+func (c *Catalogue) ReadProfileAt(in *ProfileInput, path ...any) (*Profile, error) {
+	p, err := c.ReadProfile(in)
+	if err != nil {
+		return nil, PrefixError(err, path...)
+	}
+	p.Warnings = PrefixWarnings(p.Warnings, path...)
+	return p, nil
 }
 
 // Warning records a normalisation or an assumption the calculation made, so
@@ -105,15 +166,15 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 	if math.IsNaN(tol) || tol < 0 {
 		return nil, Errorf(KindInvalid, "sum tolerance must be a non-negative number").WithField("must be >= 0", "sum_tolerance_percent")
 	}
-	p := &Profile{Basis: basis}
-	bad := Errorf(KindInvalid, "the profile has entries that cannot be used")
-	index := map[*FattyAcid]int{}
+	p := &Profile{Basis: basis, Components: make([]Component, 0, len(entries))}
+	var bad FieldErrors
+	index := make(map[*FattyAcid]int, len(entries))
 	var unidentified float64
 	for i, e := range entries {
 		// One entry may exceed 100 by the sum tolerance: a pure standard
 		// read at 100.2 % is scaled like any profile that sums to 100.2.
 		if math.IsNaN(e.Percent) || math.IsInf(e.Percent, 0) || e.Percent < 0 || e.Percent > 100+tol {
-			bad.WithField(fmt.Sprintf("percent must be a finite number from 0 to 100 (+ the sum tolerance, %g)", tol), "acids", i, "percent")
+			bad.Invalid(fmt.Sprintf("percent must be a finite number from 0 to 100 (+ the sum tolerance, %g)", tol), "acids", i, "percent")
 			continue
 		}
 		if e.Percent == 0 {
@@ -122,11 +183,10 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 		p.InputSum += e.Percent
 		// Suggestions cost an edit-distance search; a profile full of bad
 		// labels gets them for the first few only.
-		r, err := cat.resolve(e.Label, len(bad.Fields) < maxSuggestedLabels)
+		r, err := cat.resolve(e.Acid, bad.Len() < maxSuggestedLabels)
 		if err != nil {
 			ce, _ := AsError(err)
-			bad.Fields = append(bad.Fields, FieldError{
-				Path: []any{"acids", i, "acid"}, Reason: ce.Message, Suggestions: ce.Suggestions})
+			bad.AddSuggested(KindInvalid, ce.Message, ce.Suggestions, "acids", i, "acid")
 			continue
 		}
 		if r.Unidentified {
@@ -139,18 +199,15 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 		if j, seen := index[r.Acid]; seen {
 			p.Components[j].Percent += e.Percent
 			p.Warnings = append(p.Warnings, Warning{WarnDuplicateAcid,
-				fmt.Sprintf("%s appears more than once (label %q); the entries were summed", r.Acid.ID, e.Label),
+				fmt.Sprintf("%s appears more than once (label %q); the entries were summed", r.Acid.ID, e.Acid),
 				[]any{"acids", i, "acid"}})
 			continue
 		}
 		index[r.Acid] = len(p.Components)
 		p.Components = append(p.Components, Component{Acid: r.Acid, Percent: e.Percent})
 	}
-	if len(bad.Fields) > 0 {
-		if len(bad.Fields) == 1 {
-			bad.Message = bad.Fields[0].Reason
-		}
-		return nil, bad
+	if err := bad.Err(""); err != nil {
+		return nil, err
 	}
 	if dev := math.Abs(p.InputSum - 100); dev > tol+SumNoise {
 		return nil, Errorf(KindInvalid, "the percentages sum to %.4g, outside 100 ± %.4g", p.InputSum, tol).

@@ -23,7 +23,7 @@ func RandomEntries(rng *rand.Rand, cat *chem.Catalogue, maxAcids int) []chem.Ent
 			continue
 		}
 		seen[a.ID] = true
-		entries = append(entries, chem.Entry{Label: a.ID, Percent: math.Pow(10, 2*rng.Float64()-1)})
+		entries = append(entries, chem.Entry{Acid: a.ID, Percent: math.Pow(10, 2*rng.Float64()-1)})
 	}
 	var sum float64
 	for _, e := range entries {

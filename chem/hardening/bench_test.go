@@ -7,10 +7,10 @@ import "testing"
 func BenchmarkHydrogenDemand(b *testing.B) {
 	req := NewHydrogenRequest(133, FinalIodineValue(70), 25000, 150)
 	req.Basis = ProductBasis
-	req.Gas.Purity = 0.985
-	req.Gas.LossFraction = 0.05
+	req.Gas.PurityPercent = 98.5
+	req.Gas.LossPercent = 5
 	for b.Loop() {
-		if _, err := HydrogenDemand(req); err != nil {
+		if _, err := HydrogenDemandOf(req); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -50,6 +50,18 @@ type Observation struct {
 	// measured (or as chem.IodineValue computes it from Profile). It fixes
 	// the point of the path the composition is compared with.
 	IodineValue float64
+	// IodineValueComputed says that IodineValue was computed from Profile;
+	// a problem with it then points at the profile, which is what the
+	// caller gave.
+	IodineValueComputed bool
+}
+
+// ivPath is where a problem with an observation's iodine value points.
+func (o Observation) ivPath(i int) []any {
+	if o.IodineValueComputed {
+		return []any{"observations", i, "profile"}
+	}
+	return []any{"observations", i, "iodine_value"}
 }
 
 // FitRequest is the input of [Fit]. Build it with [NewFitRequest]. Field
@@ -60,7 +72,7 @@ type Observation struct {
 //	("observations", i, "profile")           missing profile
 //	("observations", i, "iodine_value")      not finite; at or above the feed's, at or below 0
 //	("initial", <parameter>)                 starting values, see [Parameter.String]
-//	("free"), ("free", i)                    empty or duplicate free parameters
+//	("free_parameters"), ("free_parameters", i)  empty or duplicate free parameters
 //	("max_iterations")                       iteration cap
 type FitRequest struct {
 	// Feed is the oil the observed products were hardened from.
@@ -284,7 +296,7 @@ type fitter struct {
 	jac              *mat.Dense
 }
 
-// Fit calibrates the catalyst parameters on observed products of plant
+// FitOf calibrates the catalyst parameters on observed products of plant
 // batches: it finds the parameters whose forecast compositions, at the
 // observed iodine values, come closest to the observed compositions in the
 // least-squares sense (all acid groups of all observations weighted
@@ -307,7 +319,7 @@ type fitter struct {
 // request the data cannot answer (an observation's iodine value outside the
 // path, fewer data than free parameters), chem.KindNoConvergence when the
 // iteration cap is hit; ctx.Err() if ctx ends first.
-func Fit(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*FitResult, error) {
+func FitOf(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*FitResult, error) {
 	f, warnings, err := newFitter(ctx, cat, req)
 	if err != nil {
 		return nil, err
@@ -446,47 +458,47 @@ func (f *fitter) run(theta0 []float64, iters int) (fitRun, error) {
 
 // newFitter validates the request and prepares the data.
 func newFitter(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*fitter, []chem.Warning, error) {
-	var errs fieldErrors
+	var errs chem.FieldErrors
 	if req.Feed == nil || len(req.Feed.Components) == 0 {
-		errs.invalid("a feed profile is required", "feed")
+		errs.Invalid("a feed profile is required", "feed")
 	}
 	switch {
 	case len(req.Observations) == 0:
-		errs.invalid("at least one observed product is required", "observations")
+		errs.Invalid("at least one observed product is required", "observations")
 	case len(req.Observations) > MaxObservations:
-		errs.invalid(fmt.Sprintf("at most %d observed products", MaxObservations), "observations")
+		errs.Invalid(fmt.Sprintf("at most %d observed products", MaxObservations), "observations")
 	}
 	for i, o := range req.Observations {
 		if o.Profile == nil || len(o.Profile.Components) == 0 {
-			errs.invalid("a product profile is required", "observations", i, "profile")
+			errs.Invalid("a product profile is required", "observations", i, "profile")
 		}
 		if !isFinite(o.IodineValue) {
-			errs.invalid("must be a finite iodine value", "observations", i, "iodine_value")
+			errs.Invalid("must be a finite iodine value", o.ivPath(i)...)
 		}
 	}
 	req.Initial.validateInto(&errs, "initial")
 	if req.Free != nil {
 		if len(req.Free) == 0 {
-			errs.invalid("name at least one parameter to fit, or leave the list out to fit all", "free")
+			errs.Invalid("name at least one parameter to fit, or leave the list out to fit all", "free_parameters")
 		}
 		seen := map[Parameter]bool{}
 		for i, p := range req.Free {
 			if _, ok := ParseParameter(p.String()); !ok {
-				errs.invalid("unknown parameter", "free", i)
+				errs.Invalid("unknown parameter", "free_parameters", i)
 			} else if seen[p] {
-				errs.invalid("parameter listed twice", "free", i)
+				errs.Invalid("parameter listed twice", "free_parameters", i)
 			}
 			seen[p] = true
 		}
 	}
 	if req.MaxIterations < 0 || req.MaxIterations > MaxFitIterations {
-		errs.invalid(fmt.Sprintf("must be from 0 (default) to %d", MaxFitIterations), "max_iterations")
+		errs.Invalid(fmt.Sprintf("must be from 0 (default) to %d", MaxFitIterations), "max_iterations")
 	}
-	if err := errs.err("catalyst fit request"); err != nil {
+	if err := errs.Err("the catalyst fit request has problems"); err != nil {
 		return nil, nil, err
 	}
 
-	net, x0, err := prepareFeed(cat, req.Feed, nil)
+	net, x0, err := prepareFeed(cat, req.Feed, nil, "feed")
 	if err != nil {
 		return nil, nil, err
 	}
@@ -497,11 +509,11 @@ func newFitter(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*fitte
 	}
 	for i, o := range req.Observations {
 		if o.IodineValue <= 0 || o.IodineValue >= feedIV {
-			errs.outOfDomain(fmt.Sprintf("must lie between 0 and the feed's iodine value %.4g (both excluded)", feedIV),
-				"observations", i, "iodine_value")
+			errs.OutOfDomain(fmt.Sprintf("must lie between 0 and the feed's iodine value %.4g (both excluded)", feedIV),
+				o.ivPath(i)...)
 		}
 	}
-	if err := errs.err("catalyst fit request"); err != nil {
+	if err := errs.Err("the catalyst fit request has problems"); err != nil {
 		return nil, nil, err
 	}
 
@@ -527,7 +539,7 @@ func newFitter(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*fitte
 				warnings = append(warnings, chem.Warning{Code: chem.WarnMethodScope,
 					Message: fmt.Sprintf("the feed holds %.3g mol %% of acids with three or more double bonds, too little to "+
 						"tell the linolenic selectivity from the data; it was held at %g", 100*trienes, req.Initial.LinolenicSelectivity),
-					Path: []any{"free"}})
+					Path: []any{"free_parameters"}})
 			case (p == ParamLinoleicSelectivity || p == ParamTransShare) && polyenes < minLinolenicMoleFraction:
 				held = append(held, fmt.Sprintf("%s at %g", p, req.Initial.Value(p)))
 			default:
@@ -538,7 +550,7 @@ func newFitter(ctx context.Context, cat *chem.Catalogue, req FitRequest) (*fitte
 			warnings = append(warnings, chem.Warning{Code: chem.WarnMethodScope,
 				Message: fmt.Sprintf("the feed holds %.3g mol %% of acids with two or more double bonds, too little to tell "+
 					"the linoleic selectivity and the trans share from the data; held %s", 100*polyenes, strings.Join(held, " and ")),
-				Path: []any{"free"}})
+				Path: []any{"free_parameters"}})
 		}
 	}
 
@@ -800,7 +812,7 @@ func (f *fitter) result(req FitRequest, theta []float64, iterations int, warning
 				out.Warnings = append(out.Warnings, chem.Warning{Code: chem.WarnMethodScope,
 					Message: fmt.Sprintf("%s ended at the bound of its range (%g); the data do not determine it — "+
 						"add observations along the path or hold it", p, est.Value),
-					Path: []any{"free"}})
+					Path: []any{"free_parameters"}})
 			} else if se != nil && isFinite(se[i]) {
 				v := se[i]
 				if f.free[i].log {

@@ -55,7 +55,7 @@ func syntheticObservations(t testing.TB, cat *chem.Catalogue, feed *chem.Profile
 					if v > 0.05 {
 						v = math.Max(0, v+noise*(2*rng.Float64()-1))
 					}
-					entries = append(entries, chem.Entry{Label: c.Acid.ID, Percent: v})
+					entries = append(entries, chem.Entry{Acid: c.Acid.ID, Percent: v})
 				}
 				var err error
 				prof, err = chem.NewProfile(cat, feed.Basis, entries, 10)
@@ -85,7 +85,7 @@ func TestFitRecoversExactData(t *testing.T) {
 	obs := syntheticObservations(t, cat, feed, 1, 0, 0)
 
 	t.Run("default free parameters", func(t *testing.T) {
-		res, err := Fit(context.Background(), cat, NewFitRequest(feed, obs))
+		res, err := FitOf(context.Background(), cat, NewFitRequest(feed, obs))
 		require.NoError(t, err)
 		t.Logf("%+v iterations %d evaluations %d rms %.3g", res.Catalyst, res.Iterations, res.Evaluations, res.RMSPercentagePoints)
 		requireRecovered(t, res, AllParameters(), 0.02)
@@ -101,7 +101,7 @@ func TestFitRecoversExactData(t *testing.T) {
 		require.Empty(t, res.Warnings)
 
 		// The fitted catalyst is ready for the forecast.
-		_, err = Forecast(context.Background(), cat, NewForecastRequest(feed, FinalIodineValue(70), res.Catalyst))
+		_, err = ForecastOf(context.Background(), cat, NewForecastRequest(feed, FinalIodineValue(70), res.Catalyst))
 		require.NoError(t, err)
 	})
 
@@ -109,7 +109,7 @@ func TestFitRecoversExactData(t *testing.T) {
 		req := NewFitRequest(feed, obs)
 		req.Free = AllParameters()
 		req.Initial.TransCisEquilibrium = 3 // start K away from the truth too
-		res, err := Fit(context.Background(), cat, req)
+		res, err := FitOf(context.Background(), cat, req)
 		require.NoError(t, err)
 		t.Logf("%+v iterations %d evaluations %d rms %.3g", res.Catalyst, res.Iterations, res.Evaluations, res.RMSPercentagePoints)
 		requireRecovered(t, res, AllParameters(), 0.02)
@@ -125,7 +125,7 @@ func TestFitRecoversNoisyData(t *testing.T) {
 	feed := testFeed(t, cat, "soy-like")
 	for _, seed := range []uint64{1, 2, 3} {
 		req := NewFitRequest(feed, syntheticObservations(t, cat, feed, 2, 0.3, seed))
-		res, err := Fit(context.Background(), cat, req)
+		res, err := FitOf(context.Background(), cat, req)
 		require.NoError(t, err)
 		t.Logf("seed %d: %+v iterations %d evaluations %d rms %.3g R² %.6f", seed, res.Catalyst, res.Iterations, res.Evaluations, res.RMSPercentagePoints, res.RSquared)
 		for _, p := range res.Parameters {
@@ -150,10 +150,10 @@ func TestFitGroupsIsomers(t *testing.T) {
 		switch c.Acid.ID {
 		case "18:1 t":
 			entries = append(entries,
-				chem.Entry{Label: "elaidic", Percent: c.Percent * 0.4},
-				chem.Entry{Label: "18:1 t11", Percent: c.Percent * 0.6})
+				chem.Entry{Acid: "elaidic", Percent: c.Percent * 0.4},
+				chem.Entry{Acid: "18:1 t11", Percent: c.Percent * 0.6})
 		default:
-			entries = append(entries, chem.Entry{Label: c.Acid.ID, Percent: c.Percent})
+			entries = append(entries, chem.Entry{Acid: c.Acid.ID, Percent: c.Percent})
 		}
 	}
 	prof, err := chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.01)
@@ -161,7 +161,7 @@ func TestFitGroupsIsomers(t *testing.T) {
 	req := NewFitRequest(feed, []Observation{{Profile: prof, IodineValue: 70}})
 	req.Initial = syntheticTruth
 	req.Free = []Parameter{ParamTransShare}
-	res, err := Fit(context.Background(), cat, req)
+	res, err := FitOf(context.Background(), cat, req)
 	require.NoError(t, err)
 	require.InEpsilon(t, syntheticTruth.TransShare, res.Catalyst.TransShare, 1e-5)
 	var names []string
@@ -186,10 +186,10 @@ func TestFitHoldsLinolenicSelectivityWithoutTrienes(t *testing.T) {
 		res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(iv), syntheticTruth))
 		obs = append(obs, Observation{Profile: res.Product, IodineValue: res.FinalIodineValue})
 	}
-	res, err := Fit(context.Background(), cat, NewFitRequest(feed, obs))
+	res, err := FitOf(context.Background(), cat, NewFitRequest(feed, obs))
 	require.NoError(t, err)
 	require.Len(t, res.Warnings, 1)
-	require.Equal(t, []any{"free"}, res.Warnings[0].Path)
+	require.Equal(t, []any{"free_parameters"}, res.Warnings[0].Path)
 	start, _ := PresetByName(PresetNickelSelective)
 	require.Equal(t, start.Catalyst.LinolenicSelectivity, res.Catalyst.LinolenicSelectivity)
 	require.False(t, res.Parameters[0].Free)
@@ -227,10 +227,10 @@ func TestFitRejects(t *testing.T) {
 			chem.KindOutOfDomain, [][]any{{"observations", 0, "iodine_value"}}},
 		{"bad initial", func(r *FitRequest) { r.Initial.LinoleicSelectivity = 0 }, chem.KindInvalid,
 			[][]any{{"initial", "linoleic_selectivity"}}},
-		{"empty free list", func(r *FitRequest) { r.Free = []Parameter{} }, chem.KindInvalid, [][]any{{"free"}}},
+		{"empty free list", func(r *FitRequest) { r.Free = []Parameter{} }, chem.KindInvalid, [][]any{{"free_parameters"}}},
 		{"duplicate free", func(r *FitRequest) { r.Free = []Parameter{ParamTransShare, ParamTransShare} }, chem.KindInvalid,
-			[][]any{{"free", 1}}},
-		{"unknown free", func(r *FitRequest) { r.Free = []Parameter{Parameter(42)} }, chem.KindInvalid, [][]any{{"free", 0}}},
+			[][]any{{"free_parameters", 1}}},
+		{"unknown free", func(r *FitRequest) { r.Free = []Parameter{Parameter(42)} }, chem.KindInvalid, [][]any{{"free_parameters", 0}}},
 		{"iteration cap", func(r *FitRequest) { r.MaxIterations = MaxFitIterations + 1 }, chem.KindInvalid, [][]any{{"max_iterations"}}},
 		{"nothing to harden", func(r *FitRequest) { r.Feed = profileOf(t, cat, chem.BasisFAMEWeight, "16:0", 50, "18:0", 50) },
 			chem.KindOutOfDomain, [][]any{{"feed", "acids"}}},
@@ -239,7 +239,7 @@ func TestFitRejects(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			req := NewFitRequest(feed, obs)
 			tc.edit(&req)
-			_, err := Fit(context.Background(), cat, req)
+			_, err := FitOf(context.Background(), cat, req)
 			requireFieldError(t, err, tc.kind, tc.paths...)
 		})
 	}
@@ -254,7 +254,7 @@ func TestFitTooFewData(t *testing.T) {
 	// The product holds 18:0, 18:1 cis and 18:1 trans: two independent values.
 	req := NewFitRequest(feed, []Observation{{Profile: res.Product, IodineValue: 40}})
 	req.Free = DefaultFreeParameters()
-	_, err := Fit(context.Background(), cat, req)
+	_, err := FitOf(context.Background(), cat, req)
 	requireFieldError(t, err, chem.KindOutOfDomain, []any{"observations"})
 }
 
@@ -270,7 +270,7 @@ func TestFitHoldsPolyeneParametersWithoutPolyenes(t *testing.T) {
 		res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(iv), syntheticTruth))
 		obs = append(obs, Observation{Profile: res.Product, IodineValue: iv})
 	}
-	res, err := Fit(context.Background(), cat, NewFitRequest(feed, obs))
+	res, err := FitOf(context.Background(), cat, NewFitRequest(feed, obs))
 	require.NoError(t, err)
 	var msgs []string
 	for _, w := range res.Warnings {
@@ -293,7 +293,7 @@ func TestFitIterationCap(t *testing.T) {
 	feed := testFeed(t, cat, "soy-like")
 	req := NewFitRequest(feed, syntheticObservations(t, cat, feed, 1, 0, 0))
 	req.MaxIterations = 1
-	_, err := Fit(context.Background(), cat, req)
+	_, err := FitOf(context.Background(), cat, req)
 	requireFieldError(t, err, chem.KindNoConvergence, []any{"max_iterations"})
 }
 
@@ -303,7 +303,7 @@ func TestFitContext(t *testing.T) {
 	feed := testFeed(t, cat, "soy-like")
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	_, err := Fit(ctx, cat, NewFitRequest(feed, syntheticObservations(t, cat, feed, 1, 0, 0)))
+	_, err := FitOf(ctx, cat, NewFitRequest(feed, syntheticObservations(t, cat, feed, 1, 0, 0)))
 	require.ErrorIs(t, err, context.Canceled)
 }
 
@@ -328,7 +328,7 @@ func TestFitRecoversFromPoorStarts(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			req := NewFitRequest(feed, obs)
 			req.Initial = start
-			res, err := Fit(context.Background(), cat, req)
+			res, err := FitOf(context.Background(), cat, req)
 			require.NoError(t, err)
 			requireRecovered(t, res, DefaultFreeParameters(), 0.02)
 			require.Less(t, res.RMSPercentagePoints, 1e-4)

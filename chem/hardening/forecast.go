@@ -33,16 +33,6 @@ const (
 	FullyHydrogenatedMaxIodineValue = 4.0
 )
 
-// TargetHydrogenKgPerTonne asks [Forecast] to stop when the oil has taken
-// up Target.Value kg of H2 per tonne of feed. [HydrogenDemand] does not
-// accept it (it answers the inverse question).
-const TargetHydrogenKgPerTonne TargetKind = TargetIodineValueDrop + 1
-
-// HydrogenKgPerTonne returns a target of kg H2 taken up per tonne of feed.
-func HydrogenKgPerTonne(kg float64) Target {
-	return Target{Kind: TargetHydrogenKgPerTonne, Value: kg}
-}
-
 // Solver limits. They are generous: a safeguarded Newton solve on the
 // smooth, monotone iodine value needs three to six evaluations.
 const (
@@ -62,9 +52,9 @@ const (
 // ForecastRequest is the input of [Forecast]. Build it with
 // [NewForecastRequest]. Field paths in errors, in the API's vocabulary:
 //
-//	("feed")                                 missing feed
-//	("feed", "acids")                        feed acids the model cannot harden; nothing to harden
-//	("sn2", "acids")                         an sn-2 composition that breaks b_i ≤ 3x_i
+//	("profile")                              missing feed
+//	("profile", "acids")                     feed acids the model cannot harden; nothing to harden
+//	("sn2_profile", "acids")                 an sn-2 composition that breaks b_i ≤ 3x_i
 //	("target", "kind")                       unknown target kind
 //	("target", "iodine_value")               final iodine value
 //	("target", "iodine_value_drop")          iodine-value drop
@@ -114,7 +104,7 @@ type PathPoint struct {
 	// ForecastResult.Acids, in the feed's basis, summing to 100.
 	Percent []float64
 	// TransPercent and SaturatedPercent are the composition sums of
-	// chem.ComputeProperties (trans: at least one non-conjugated trans
+	// chem.PropertiesOf (trans: at least one non-conjugated trans
 	// double bond, Regulation (EU) No 1169/2011), in the feed's basis.
 	TransPercent     float64
 	SaturatedPercent float64
@@ -157,7 +147,7 @@ type ForecastResult struct {
 	// Product is the hardened oil, in the feed's basis, built with
 	// chem.FromMoleFractions.
 	Product *chem.Profile
-	// ProductProperties are chem.ComputeProperties of Product as a
+	// ProductProperties are chem.PropertiesOf of Product as a
 	// triacylglycerol oil, so that every figure matches what the properties
 	// calculation would say of the same composition.
 	ProductProperties chem.Properties
@@ -286,7 +276,7 @@ func (tr *trajectory) tauAt(ctx context.Context, target, start float64) (float64
 	return tr.solve(ctx, target, 0, math.Inf(1), start)
 }
 
-// Forecast predicts the composition of an oil hardened to a target with a
+// ForecastOf predicts the composition of an oil hardened to a target with a
 // given catalyst, the path it follows and the hydrogen it takes up. The
 // model is described in the package documentation. cat is the catalogue
 // the feed was read with; the products are looked up in it. It returns a
@@ -295,10 +285,10 @@ func (tr *trajectory) tauAt(ctx context.Context, target, start float64) (float64
 // iodine value, at or below zero, beyond full saturation; a feed with nothing
 // to harden or with an acid it cannot harden), and chem.KindNoConvergence if
 // a solver hits its iteration cap; ctx.Err() if ctx ends first.
-func Forecast(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (*ForecastResult, error) {
-	var errs fieldErrors
+func ForecastOf(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (*ForecastResult, error) {
+	var errs chem.FieldErrors
 	if req.Feed == nil || len(req.Feed.Components) == 0 {
-		errs.invalid("a feed profile is required", "feed")
+		errs.Invalid("a feed profile is required", "profile")
 	}
 	req.Catalyst.validateInto(&errs, "catalyst")
 	points := req.PathPoints
@@ -306,18 +296,18 @@ func Forecast(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (*F
 		points = DefaultPathPoints
 	}
 	if points < MinPathPoints || points > MaxPathPoints {
-		errs.invalid(fmt.Sprintf("must be from %d to %d", MinPathPoints, MaxPathPoints), "path_points")
+		errs.Invalid(fmt.Sprintf("must be from %d to %d", MinPathPoints, MaxPathPoints), "path_points")
 	}
 	if req.Target.Kind < TargetFinalIodineValue || req.Target.Kind > TargetHydrogenKgPerTonne {
-		errs.invalid("must be a final iodine value, an iodine-value drop or hydrogen per tonne", "target", "kind")
+		errs.Invalid("must be a final iodine value, an iodine-value drop or hydrogen per tonne", "target", "kind")
 	} else if !isFinite(req.Target.Value) {
-		errs.invalid("must be a finite number", targetPath(req.Target.Kind)...)
+		errs.Invalid("must be a finite number", targetPath(req.Target.Kind)...)
 	}
-	if err := errs.err("hardening forecast request"); err != nil {
+	if err := errs.Err("the hardening forecast request has problems"); err != nil {
 		return nil, err
 	}
 
-	net, x0, err := prepareFeed(cat, req.Feed, req.Sn2)
+	net, x0, err := prepareFeed(cat, req.Feed, req.Sn2, "profile")
 	if err != nil {
 		return nil, err
 	}
@@ -359,7 +349,7 @@ func Forecast(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (*F
 	}
 	for k, tau := range taus {
 		p := chem.FromMoleFractions(net.acids, states[k], req.Feed.Basis)
-		props := chem.ComputeProperties(p, chem.MaterialTAG)
+		props := chem.PropertiesOf(p, chem.MaterialTAG)
 		pt := PathPoint{
 			PathVariable:     tau,
 			IodineValue:      props.IodineValue,
@@ -431,7 +421,7 @@ func targetIodineValue(t Target, feedIV float64) (float64, error) {
 	path := targetPath(t.Kind)
 	if !(feedIV > 0) {
 		return 0, chem.Errorf(chem.KindOutOfDomain, "the feed has no double bonds (iodine value 0): nothing to harden").
-			WithField("the feed's iodine value is 0; there is nothing to harden", "feed", "acids")
+			WithField("the feed's iodine value is 0; there is nothing to harden", "profile", "acids")
 	}
 	outside := func(reason string) error {
 		return chem.Errorf(chem.KindOutOfDomain, "%s", reason).WithField(reason, path...)
@@ -473,14 +463,15 @@ func targetIodineValue(t Target, feedIV float64) (float64, error) {
 
 // prepareFeed builds the network for the feed (and sn-2 composition) and
 // the feed's mole fractions in network order.
-func prepareFeed(cat *chem.Catalogue, feed, sn2 *chem.Profile) (*network, []float64, error) {
+// Errors about the feed's acids point under feedField.
+func prepareFeed(cat *chem.Catalogue, feed, sn2 *chem.Profile, feedField string) (*network, []float64, error) {
 	acids := make([]*chem.FattyAcid, 0, len(feed.Components))
 	for _, c := range feed.Components {
 		acids = append(acids, c.Acid)
 	}
 	net, err := newNetwork(cat, acids)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, chem.PrefixError(err, feedField)
 	}
 	x0 := make([]float64, len(net.acids))
 	for i, c := range feed.Components {
@@ -513,7 +504,7 @@ func checkSn2(net *network, x0 []float64, sn2 *chem.Profile) error {
 	}
 	if len(bad) > 0 {
 		reason := "an acid's sn-2 share exceeds three times its share of all chains: " + strings.Join(bad, ", ")
-		return chem.Errorf(chem.KindInvalid, "the sn-2 composition does not fit the feed").WithField(reason, "sn2", "acids")
+		return chem.Errorf(chem.KindInvalid, "the sn-2 composition does not fit the feed").WithField(reason, "sn2_profile", "acids")
 	}
 	return nil
 }
@@ -552,7 +543,7 @@ func (net *network) warnings() []chem.Warning {
 			Code: chem.WarnMethodScope,
 			Message: fmt.Sprintf("the catalogue holds no trans isomers for %s or for what hardening makes of them; "+
 				"trans formed there is counted as cis, so the trans figures are a lower bound", strings.Join(net.untracked, ", ")),
-			Path: []any{"feed", "acids"},
+			Path: []any{"profile", "acids"},
 		})
 	}
 	if len(net.conjugated) > 0 {
@@ -564,7 +555,7 @@ func (net *network) warnings() []chem.Warning {
 			Code: chem.WarnMethodScope,
 			Message: fmt.Sprintf("%s %s conjugated double bonds; the model has no rate of its own for them and hardens "+
 				"them at the rate of the methylene-interrupted isomers", strings.Join(net.conjugated, ", "), verb),
-			Path: []any{"feed", "acids"},
+			Path: []any{"profile", "acids"},
 		})
 	}
 	return out

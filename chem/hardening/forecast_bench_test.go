@@ -18,7 +18,7 @@ func BenchmarkForecast(b *testing.B) {
 	ctx := context.Background()
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := Forecast(ctx, cat, req); err != nil {
+		if _, err := ForecastOf(ctx, cat, req); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -34,7 +34,7 @@ func BenchmarkFit(b *testing.B) {
 	ctx := context.Background()
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := Fit(ctx, cat, req); err != nil {
+		if _, err := FitOf(ctx, cat, req); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -61,7 +61,7 @@ func testFeed(t testing.TB, cat *chem.Catalogue, name string) *chem.Profile {
 	require.NotEmpty(t, def.Source)
 	entries := make([]chem.Entry, len(def.Acids))
 	for i, a := range def.Acids {
-		entries[i] = chem.Entry{Label: a.Acid, Percent: a.Percent}
+		entries[i] = chem.Entry{Acid: a.Acid, Percent: a.Percent}
 	}
 	basis, ok := basisByName[def.Basis]
 	require.True(t, ok)
@@ -75,7 +75,7 @@ func profileOf(t testing.TB, cat *chem.Catalogue, basis chem.Basis, pairs ...any
 	t.Helper()
 	var entries []chem.Entry
 	for i := 0; i < len(pairs); i += 2 {
-		entries = append(entries, chem.Entry{Label: pairs[i].(string), Percent: toFloat(pairs[i+1])})
+		entries = append(entries, chem.Entry{Acid: pairs[i].(string), Percent: toFloat(pairs[i+1])})
 	}
 	p, err := chem.NewProfile(cat, basis, entries, 0.5)
 	require.NoError(t, err)
@@ -100,7 +100,7 @@ func mustPreset(t testing.TB, name string) Catalyst {
 
 func mustForecast(t testing.TB, cat *chem.Catalogue, req ForecastRequest) *ForecastResult {
 	t.Helper()
-	res, err := Forecast(context.Background(), cat, req)
+	res, err := ForecastOf(context.Background(), cat, req)
 	require.NoError(t, err)
 	return res
 }
@@ -156,7 +156,7 @@ func TestForecastPathInvariants(t *testing.T) {
 			require.Equal(t, 0.0, res.Path[0].PathVariable)
 
 			// The raw mole balance, before FromMoleFractions normalises.
-			net, x0, err := prepareFeed(cat, feed, nil)
+			net, x0, err := prepareFeed(cat, feed, nil, "profile")
 			require.NoError(t, err)
 			net.setCatalyst(preset.Catalyst)
 			x := make([]float64, len(x0))
@@ -173,7 +173,7 @@ func TestForecastPathInvariants(t *testing.T) {
 			// basis (the existing, separately tested calculation).
 			hreq := NewHydrogenRequest(res.FeedIodineValue, FinalIodineValue(res.FinalIodineValue), 1000, 175)
 			hreq.Basis = ProductBasis
-			hres, err := HydrogenDemand(hreq)
+			hres, err := HydrogenDemandOf(hreq)
 			require.NoError(t, err)
 			require.InDelta(t, hres.ChemicalPerTonne.Kg, res.Hydrogen.HydrogenKgPerTonne, 1e-12)
 			require.InDelta(t, hres.ChemicalPerTonne.Kg, res.Path[len(res.Path)-1].HydrogenKgPerTonne, 1e-12)
@@ -184,8 +184,8 @@ func TestForecastPathInvariants(t *testing.T) {
 			molPerGramFeed := (dFeed - dProd) / (feed.MeanAcidMolarMass() + chem.GlycerolBackboneIncrement/3)
 			require.InEpsilon(t, molPerGramFeed*1e6*chem.MolarMassH2/1000, res.Hydrogen.HydrogenKgPerTonne, 1e-12)
 
-			// Sums come from chem.ComputeProperties of the product.
-			props := chem.ComputeProperties(res.Product, chem.MaterialTAG)
+			// Sums come from chem.PropertiesOf of the product.
+			props := chem.PropertiesOf(res.Product, chem.MaterialTAG)
 			require.Equal(t, props.Sums.Trans, res.TransPercent)
 			require.Equal(t, props.Sums.Saturated, res.SaturatedPercent)
 			require.InDelta(t, props.IodineValue, res.FinalIodineValue, 1e-12)
@@ -201,7 +201,7 @@ func TestForecastPathInvariants(t *testing.T) {
 func TestBatemanAgreement(t *testing.T) {
 	cat := chem.NewCatalogue()
 	feed := testFeed(t, cat, "soy-like")
-	net, x0, err := prepareFeed(cat, feed, nil)
+	net, x0, err := prepareFeed(cat, feed, nil, "profile")
 	require.NoError(t, err)
 	idx := map[string]int{}
 	for i, a := range net.acids {
@@ -385,13 +385,13 @@ func TestForecastSn2Pools(t *testing.T) {
 	// times its 11 % share of all chains.
 	bad := profileOf(t, cat, chem.BasisMole, "16:0", 50, "18:2", 50)
 	req.Sn2 = bad
-	_, err := Forecast(context.Background(), cat, req)
-	requireFieldError(t, err, chem.KindInvalid, []any{"sn2", "acids"})
+	_, err := ForecastOf(context.Background(), cat, req)
+	requireFieldError(t, err, chem.KindInvalid, []any{"sn2_profile", "acids"})
 
 	// An acid the feed does not hold cannot sit at sn-2.
 	req.Sn2 = profileOf(t, cat, chem.BasisMole, "18:2", 90, "22:6", 10)
-	_, err = Forecast(context.Background(), cat, req)
-	requireFieldError(t, err, chem.KindInvalid, []any{"sn2", "acids"})
+	_, err = ForecastOf(context.Background(), cat, req)
+	requireFieldError(t, err, chem.KindInvalid, []any{"sn2_profile", "acids"})
 }
 
 // TestForecastRejects lists malformed and impossible requests and the field
@@ -409,7 +409,7 @@ func TestForecastRejects(t *testing.T) {
 		kind  chem.ErrorKind
 		paths [][]any
 	}{
-		{"no feed", func(r *ForecastRequest) { r.Feed = nil }, chem.KindInvalid, [][]any{{"feed"}}},
+		{"no feed", func(r *ForecastRequest) { r.Feed = nil }, chem.KindInvalid, [][]any{{"profile"}}},
 		{"target above feed", func(r *ForecastRequest) { r.Target = FinalIodineValue(140) }, chem.KindOutOfDomain, [][]any{{"target", "iodine_value"}}},
 		{"target equals feed", func(r *ForecastRequest) { r.Target = FinalIodineValue(feedIV) }, chem.KindOutOfDomain, [][]any{{"target", "iodine_value"}}},
 		{"target below zero", func(r *ForecastRequest) { r.Target = FinalIodineValue(-1) }, chem.KindOutOfDomain, [][]any{{"target", "iodine_value"}}},
@@ -434,16 +434,16 @@ func TestForecastRejects(t *testing.T) {
 		{"zero equilibrium", func(r *ForecastRequest) { r.Catalyst.TransCisEquilibrium = 0 }, chem.KindInvalid, [][]any{{"catalyst", "trans_cis_equilibrium"}}},
 		{"nothing to harden", func(r *ForecastRequest) {
 			r.Feed = profileOf(t, cat, chem.BasisFAMEWeight, "16:0", 40, "18:0", 60)
-		}, chem.KindOutOfDomain, [][]any{{"feed", "acids"}}},
+		}, chem.KindOutOfDomain, [][]any{{"profile", "acids"}}},
 		{"hydroxy acid", func(r *ForecastRequest) {
 			r.Feed = profileOf(t, cat, chem.BasisFAMEWeight, "ricinoleic", 88, "18:2", 12)
-		}, chem.KindOutOfDomain, [][]any{{"feed", "acids"}}},
+		}, chem.KindOutOfDomain, [][]any{{"profile", "acids"}}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			req := NewForecastRequest(feed, FinalIodineValue(70), good)
 			tc.edit(&req)
-			_, err := Forecast(context.Background(), cat, req)
+			_, err := ForecastOf(context.Background(), cat, req)
 			requireFieldError(t, err, tc.kind, tc.paths...)
 		})
 	}
@@ -454,7 +454,7 @@ func TestForecastContext(t *testing.T) {
 	cat := chem.NewCatalogue()
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	_, err := Forecast(ctx, cat, NewForecastRequest(testFeed(t, cat, "soy-like"), FinalIodineValue(70), mustPreset(t, PresetNickelSelective)))
+	_, err := ForecastOf(ctx, cat, NewForecastRequest(testFeed(t, cat, "soy-like"), FinalIodineValue(70), mustPreset(t, PresetNickelSelective)))
 	require.ErrorIs(t, err, context.Canceled)
 }
 
@@ -618,7 +618,7 @@ func TestParameters(t *testing.T) {
 // dienes).
 func TestTransTrieneKeepsTransBond(t *testing.T) {
 	cat := chem.NewCatalogue()
-	feed, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Label: "18:3 t", Percent: 100}}, 0)
+	feed, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Acid: "18:3 t", Percent: 100}}, 0)
 	require.NoError(t, err)
 	c := Catalyst{LinolenicSelectivity: 2, LinoleicSelectivity: 50, TransShare: 0, IsomerisationRate: 0,
 		TransCisEquilibrium: 2, TransSaturationRate: 1}
@@ -643,7 +643,7 @@ func TestTransTrieneKeepsTransBond(t *testing.T) {
 func TestForecastWarnsOnConjugatedFeed(t *testing.T) {
 	cat := chem.NewCatalogue()
 	feed, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
-		{Label: "18:2 c9,t11", Percent: 10}, {Label: "18:2 c9,c12", Percent: 50}, {Label: "18:1 c9", Percent: 40}}, 0)
+		{Acid: "18:2 c9,t11", Percent: 10}, {Acid: "18:2 c9,c12", Percent: 50}, {Acid: "18:1 c9", Percent: 40}}, 0)
 	require.NoError(t, err)
 	res := mustForecast(t, cat, NewForecastRequest(feed, FinalIodineValue(80), mustPreset(t, PresetNickelSelective)))
 	var saw bool

@@ -31,7 +31,7 @@ func mustStandard(t testing.TB, kind GasReferenceKind) GasReference {
 
 func mustDemand(t testing.TB, req HydrogenRequest) HydrogenResult {
 	t.Helper()
-	res, err := HydrogenDemand(req)
+	res, err := HydrogenDemandOf(req)
 	require.NoError(t, err)
 	return res
 }
@@ -327,8 +327,8 @@ func TestGrossSupplyScaling(t *testing.T) {
 	}
 	for _, tc := range tests {
 		req := NewHydrogenRequest(133, FinalIodineValue(70), tc.batchKg, 150)
-		req.Gas.Purity = tc.purity
-		req.Gas.LossFraction = tc.loss
+		req.Gas.PurityPercent = 100 * tc.purity
+		req.Gas.LossPercent = 100 * tc.loss
 		res := mustDemand(t, req)
 
 		chemical := res.ChemicalPerTonne
@@ -492,35 +492,35 @@ func TestHydrogenDemandRejects(t *testing.T) {
 		{"zero batch mass", func(r *HydrogenRequest) { r.BatchMassKg = 0 }, chem.KindInvalid, [][]any{{"batch_mass_kg"}}},
 		{"negative batch mass", func(r *HydrogenRequest) { r.BatchMassKg = -100 }, chem.KindInvalid, [][]any{{"batch_mass_kg"}}},
 		{"NaN batch mass", func(r *HydrogenRequest) { r.BatchMassKg = nan }, chem.KindInvalid, [][]any{{"batch_mass_kg"}}},
-		{"zero purity", func(r *HydrogenRequest) { r.Gas.Purity = 0 }, chem.KindInvalid, [][]any{{"gas", "purity"}}},
-		{"purity above 1", func(r *HydrogenRequest) { r.Gas.Purity = 99.9 }, chem.KindInvalid, [][]any{{"gas", "purity"}}},
-		{"NaN purity", func(r *HydrogenRequest) { r.Gas.Purity = nan }, chem.KindInvalid, [][]any{{"gas", "purity"}}},
-		{"negative loss", func(r *HydrogenRequest) { r.Gas.LossFraction = -0.01 }, chem.KindInvalid, [][]any{{"gas", "loss_fraction"}}},
-		{"loss above 1", func(r *HydrogenRequest) { r.Gas.LossFraction = 5 }, chem.KindInvalid, [][]any{{"gas", "loss_fraction"}}},
+		{"zero purity", func(r *HydrogenRequest) { r.Gas.PurityPercent = 0 }, chem.KindInvalid, [][]any{{"gas", "purity_percent"}}},
+		{"purity above 100 %", func(r *HydrogenRequest) { r.Gas.PurityPercent = 100.1 }, chem.KindInvalid, [][]any{{"gas", "purity_percent"}}},
+		{"NaN purity", func(r *HydrogenRequest) { r.Gas.PurityPercent = nan }, chem.KindInvalid, [][]any{{"gas", "purity_percent"}}},
+		{"negative loss", func(r *HydrogenRequest) { r.Gas.LossPercent = -1 }, chem.KindInvalid, [][]any{{"gas", "loss_percent"}}},
+		{"loss above 100 %", func(r *HydrogenRequest) { r.Gas.LossPercent = 500 }, chem.KindInvalid, [][]any{{"gas", "loss_percent"}}},
 		{"positive enthalpy", func(r *HydrogenRequest) { r.Heat.ReactionEnthalpyKJPerMol = 115 }, chem.KindInvalid, [][]any{{"heat", "reaction_enthalpy_kj_per_mol"}}},
 		{"zero enthalpy", func(r *HydrogenRequest) { r.Heat.ReactionEnthalpyKJPerMol = 0 }, chem.KindInvalid, [][]any{{"heat", "reaction_enthalpy_kj_per_mol"}}},
-		{"NaN cp intercept", func(r *HydrogenRequest) { r.Heat.HeatCapacity.InterceptJPerGK = nan }, chem.KindInvalid, [][]any{{"heat", "heat_capacity", "intercept_j_per_g_k"}}},
-		{"infinite cp slope", func(r *HydrogenRequest) { r.Heat.HeatCapacity.SlopeJPerGK2 = inf }, chem.KindInvalid, [][]any{{"heat", "heat_capacity", "slope_j_per_g_k2"}}},
-		{"cp not positive at start", func(r *HydrogenRequest) { r.Heat.HeatCapacity = HeatCapacity{InterceptJPerGK: -2, SlopeJPerGK2: 0} }, chem.KindOutOfDomain, [][]any{{"heat", "heat_capacity"}}},
+		{"NaN cp intercept", func(r *HydrogenRequest) { r.Heat.HeatCapacity.InterceptJPerGK = nan }, chem.KindInvalid, [][]any{{"heat", "heat_capacity_intercept_kj_per_kg_k"}}},
+		{"infinite cp slope", func(r *HydrogenRequest) { r.Heat.HeatCapacity.SlopeJPerGK2 = inf }, chem.KindInvalid, [][]any{{"heat", "heat_capacity_slope_kj_per_kg_k2"}}},
+		{"cp not positive at start", func(r *HydrogenRequest) { r.Heat.HeatCapacity = HeatCapacity{InterceptJPerGK: -2, SlopeJPerGK2: 0} }, chem.KindOutOfDomain, [][]any{{"heat"}}},
 		{"cp falls to zero on the way", func(r *HydrogenRequest) {
 			r.Heat.HeatCapacity = HeatCapacity{InterceptJPerGK: 3.0, SlopeJPerGK2: -0.0065}
-		}, chem.KindOutOfDomain, [][]any{{"heat", "heat_capacity"}}},
+		}, chem.KindOutOfDomain, [][]any{{"heat"}}},
 		{"start below absolute zero", func(r *HydrogenRequest) { r.StartTemperatureC = -300 }, chem.KindInvalid, [][]any{{"start_temperature_c"}}},
 		{"NaN start temperature", func(r *HydrogenRequest) { r.StartTemperatureC = nan }, chem.KindInvalid, [][]any{{"start_temperature_c"}}},
 		{"zero request", func(r *HydrogenRequest) { *r = HydrogenRequest{} }, chem.KindInvalid, [][]any{
-			{"target", "kind"}, {"batch_mass_kg"}, {"gas", "purity"}, {"heat", "reaction_enthalpy_kj_per_mol"}, {"heat", "heat_capacity"},
+			{"target", "kind"}, {"batch_mass_kg"}, {"gas", "purity_percent"}, {"heat", "reaction_enthalpy_kj_per_mol"}, {"heat"},
 		}},
 		{"problems are gathered, invalid wins", func(r *HydrogenRequest) {
 			r.Target = FinalIodineValue(140)
 			r.BatchMassKg = 0
-			r.Gas.Purity = 2
-		}, chem.KindInvalid, [][]any{{"target", "iodine_value"}, {"batch_mass_kg"}, {"gas", "purity"}}},
+			r.Gas.PurityPercent = 200
+		}, chem.KindInvalid, [][]any{{"target", "iodine_value"}, {"batch_mass_kg"}, {"gas", "purity_percent"}}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			req := base()
 			tc.modify(&req)
-			res, err := HydrogenDemand(req)
+			res, err := HydrogenDemandOf(req)
 			requireFieldError(t, err, tc.kind, tc.paths...)
 			require.Equal(t, HydrogenResult{}, res)
 		})
@@ -531,7 +531,7 @@ func TestHydrogenDemandRejects(t *testing.T) {
 // error rather than infinite results.
 func TestHydrogenDemandOverflow(t *testing.T) {
 	req := NewHydrogenRequest(133, FinalIodineValue(70), math.MaxFloat64, 150)
-	_, err := HydrogenDemand(req)
+	_, err := HydrogenDemandOf(req)
 	require.Error(t, err)
 	ce, ok := chem.AsError(err)
 	require.True(t, ok)

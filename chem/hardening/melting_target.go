@@ -61,14 +61,17 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 			WithField("out of range", "target", "slip_melting_point_c")
 	}
 	if req.Feed == nil {
-		return nil, chem.Errorf(chem.KindInvalid, "the feed is missing").WithField("required", "feed")
+		return nil, chem.Errorf(chem.KindInvalid, "the feed is missing").WithField("required", "profile")
+	}
+	if err := mopt.Validate(); err != nil {
+		return nil, chem.PrefixError(err, "melting")
 	}
 	// A measured sn-2 composition enters as req.Sn2, which is hardened
 	// along with the feed; one fixed sn-2 profile or per-acid factors in
 	// mopt would be applied unchanged to products whose acids differ.
 	if s := mopt.Composition.SN2; s == melting.SN2Supplied || s == melting.SN2Enrichment {
 		return nil, chem.Errorf(chem.KindInvalid, "give a measured sn-2 composition as the forecast's Sn2, not as a melting option").
-			WithField("use the forecast's sn-2 composition", "composition", "sn2_estimate")
+			WithField("use the forecast's sn-2 composition", "melting", "sn2_estimate")
 	}
 	// With an sn-2 composition the melting model uses the (hardened) sn-2
 	// pool instead of estimating one, since hardening barely moves acids
@@ -114,7 +117,7 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 	feedIV := chem.IodineValue(req.Feed, chem.MaterialTAG)
 	if !(feedIV > lowestSearchIodineValue) {
 		return nil, chem.Errorf(chem.KindOutOfDomain, "the feed has nothing to harden (iodine value %.3g)", feedIV).
-			WithField("nothing to harden", "feed", "acids")
+			WithField("nothing to harden", "profile", "acids")
 	}
 
 	// at forecasts the product at a final iodine value and returns its slip
@@ -123,7 +126,7 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 		r := req
 		r.Target = FinalIodineValue(iv)
 		r.PathPoints = points
-		res, err := Forecast(ctx, cat, r)
+		res, err := ForecastOf(ctx, cat, r)
 		if err != nil {
 			return nil, 0, nil, err
 		}

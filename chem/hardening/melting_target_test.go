@@ -16,9 +16,9 @@ func soyProfile(t *testing.T, cat *chem.Catalogue) *chem.Profile {
 	// The soy-like check vector of DOMAIN.md §3 (a test vector, not a
 	// measured oil).
 	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
-		{Label: "16:0", Percent: 10.5}, {Label: "16:1 c9", Percent: 0.1}, {Label: "18:0", Percent: 4.0},
-		{Label: "18:1 c9", Percent: 23.0}, {Label: "18:2 c9,c12", Percent: 53.7}, {Label: "18:3 c9,c12,c15", Percent: 7.6},
-		{Label: "20:0", Percent: 0.4}, {Label: "20:1 c11", Percent: 0.3}, {Label: "22:0", Percent: 0.4},
+		{Acid: "16:0", Percent: 10.5}, {Acid: "16:1 c9", Percent: 0.1}, {Acid: "18:0", Percent: 4.0},
+		{Acid: "18:1 c9", Percent: 23.0}, {Acid: "18:2 c9,c12", Percent: 53.7}, {Acid: "18:3 c9,c12,c15", Percent: 7.6},
+		{Acid: "20:0", Percent: 0.4}, {Acid: "20:1 c11", Percent: 0.3}, {Acid: "22:0", Percent: 0.4},
 	}, 0)
 	require.NoError(t, err)
 	return p
@@ -71,7 +71,7 @@ func TestForecastToSlipMeltingPointRejects(t *testing.T) {
 		require.Equal(t, chem.KindInvalid, ce.Kind)
 	}
 	// A feed that already melts above the target.
-	stearin, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{{Label: "18:0", Percent: 60}, {Label: "18:1 c9", Percent: 40}}, 0)
+	stearin, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{{Acid: "18:0", Percent: 60}, {Acid: "18:1 c9", Percent: 40}}, 0)
 	require.NoError(t, err)
 	req.Feed = stearin
 	_, err = ForecastToSlipMeltingPoint(context.Background(), cat, req, 10, melting.Options{})

@@ -33,11 +33,11 @@ func TestRandomFeedsKeepInvariants(t *testing.T) {
 		entries := chemtest.RandomEntries(rng, cat, 20)
 		feed, err := chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.5)
 		require.NoError(t, err)
-		feedIV := chem.ComputeProperties(feed, chem.MaterialTAG).IodineValue
+		feedIV := chem.PropertiesOf(feed, chem.MaterialTAG).IodineValue
 		target := feedIV * (0.05 + 0.9*rng.Float64())
 		preset := presets[k%len(presets)]
 		req := NewForecastRequest(feed, FinalIodineValue(target), preset.Catalyst)
-		res, err := Forecast(context.Background(), cat, req)
+		res, err := ForecastOf(context.Background(), cat, req)
 		if err != nil {
 			ce, ok := chem.AsError(err)
 			require.True(t, ok, "case %d: %v", k, err)

@@ -19,7 +19,7 @@ func twentyAcids(b *testing.B) []acidPct {
 func BenchmarkMeltTwentyAcidRandom(b *testing.B) {
 	p := profileOf(b, twentyAcids(b)...)
 	opt := Options{Composition: CompositionOptions{Distribution: FullRandom}}
-	r, err := Melt(p, opt)
+	r, err := MeltProfile(p, opt)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -27,7 +27,7 @@ func BenchmarkMeltTwentyAcidRandom(b *testing.B) {
 	b.ReportMetric(float64(r.ComponentCount), "components")
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := Melt(p, opt); err != nil {
+		if _, err := MeltProfile(p, opt); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -53,7 +53,7 @@ func BenchmarkMeltTwentyAcidIdealSolidSolution(b *testing.B) {
 	opt := Options{SolidModel: IdealSolidSolution, Composition: CompositionOptions{Distribution: FullRandom}}
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := Melt(p, opt); err != nil {
+		if _, err := MeltProfile(p, opt); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -66,7 +66,7 @@ func BenchmarkMeltTwentyAcidPureSolids(b *testing.B) {
 	opt := Options{SolidModel: MultiplePureSolids, Composition: CompositionOptions{Distribution: FullRandom}}
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := Melt(p, opt); err != nil {
+		if _, err := MeltProfile(p, opt); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -48,7 +48,7 @@ const (
 	MaxCalibratedThresholdPercent = 15.0
 )
 
-// Calibrate fits a correction of the melting model to one fat's
+// CalibrateProfile fits a correction of the melting model to one fat's
 // measurements:
 //
 //   - With SFC points, the temperature shift ΔT (added to every TAG melting
@@ -65,7 +65,7 @@ const (
 // and the context's error if ctx ends. Measurements the model cannot match
 // within the limits are not an error: the parameter stays at its limit and
 // a WarnCalibrationLimit warning says so.
-func Calibrate(ctx context.Context, p *chem.Profile, opt Options, m Measurements) (*CalibrationReport, error) {
+func CalibrateProfile(ctx context.Context, p *chem.Profile, opt Options, m Measurements) (*CalibrationReport, error) {
 	if err := m.validate(); err != nil {
 		return nil, err
 	}
@@ -134,21 +134,21 @@ func limitWarning(msg, _ string) chem.Warning {
 func (m Measurements) validate() error {
 	bad := chem.Errorf(chem.KindInvalid, "the measurements are invalid")
 	if len(m.SFC) == 0 && !m.HasSlipMeltingPoint {
-		bad.WithField("give SFC points, a slip melting point or both", "measurements")
+		bad.WithField("give SFC points, a slip melting point or both", "measured")
 	}
 	if len(m.SFC) > MaxTemperatures {
-		bad.WithField(fmt.Sprintf("at most %d points", MaxTemperatures), "sfc_points")
+		bad.WithField(fmt.Sprintf("at most %d points", MaxTemperatures), "measured", "sfc_points")
 	}
 	for i, pt := range m.SFC {
 		if !inTemperatureRange(pt.TemperatureC) {
-			bad.WithField(fmt.Sprintf("temperature must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "sfc_points", i, "temperature_c")
+			bad.WithField(fmt.Sprintf("temperature must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "measured", "sfc_points", i, "temperature_c")
 		}
-		if !(pt.SFCPercent >= 0 && pt.SFCPercent <= 100) {
-			bad.WithField("SFC must be from 0 to 100 %", "sfc_points", i, "sfc_percent")
+		if !(pt.SolidFatPercent >= 0 && pt.SolidFatPercent <= 100) {
+			bad.WithField("SFC must be from 0 to 100 %", "measured", "sfc_points", i, "solid_fat_percent")
 		}
 	}
 	if m.HasSlipMeltingPoint && !inTemperatureRange(m.SlipMeltingPointC) {
-		bad.WithField(fmt.Sprintf("must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "slip_melting_point_c")
+		bad.WithField(fmt.Sprintf("must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "measured", "slip_melting_point_c")
 	}
 	if len(bad.Fields) > 0 {
 		if len(bad.Fields) == 1 {
@@ -174,7 +174,7 @@ func (c *calibrator) sse(s float64) (float64, error) {
 		if err != nil {
 			return 0, err
 		}
-		sum += (v - pt.SFCPercent) * (v - pt.SFCPercent)
+		sum += (v - pt.SolidFatPercent) * (v - pt.SolidFatPercent)
 	}
 	return sum, nil
 }
@@ -283,7 +283,7 @@ func (c *calibrator) errors(cal Calibration) (CalibrationError, error) {
 		if err != nil {
 			return e, err
 		}
-		d := v - pt.SFCPercent
+		d := v - pt.SolidFatPercent
 		sq += d * d
 		e.SFCMaxAbsErrorPercent = math.Max(e.SFCMaxAbsErrorPercent, math.Abs(d))
 		e.SFCPoints++

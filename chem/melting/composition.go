@@ -270,7 +270,7 @@ func TAGComposition(p *chem.Profile, opt CompositionOptions) (*Composition, erro
 // positionPools fills everything of a Composition except Species.
 func positionPools(p *chem.Profile, opt CompositionOptions) (*Composition, error) {
 	if p == nil || len(p.Components) == 0 {
-		return nil, chem.Errorf(chem.KindInvalid, "a fatty-acid profile is required").WithField("no acids", "acids")
+		return nil, chem.Errorf(chem.KindInvalid, "a fatty-acid profile is required").WithField("no acids", "profile", "acids")
 	}
 	opt = opt.withDefaults()
 	c := &Composition{Distribution: opt.Distribution}
@@ -304,7 +304,7 @@ func positionPools(p *chem.Profile, opt CompositionOptions) (*Composition, error
 		}
 	default:
 		return nil, chem.Errorf(chem.KindInvalid, "unknown distribution").
-			WithField("must be sn13_random_sn2_random or full_random", "composition", "distribution")
+			WithField("must be sn13_random_sn2_random or full_random", "distribution")
 	}
 	return c, nil
 }
@@ -390,7 +390,7 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 					"as palm oil and its fractions do, which carry some at sn-2; for them use sn2_estimate palm_rule "+
 					"or a measured sn2_profile (with the seed-oil rule a palm oil's slip melting point comes out "+
 					"about 11 K low)", 100*palmitic),
-				Path: []any{"composition", "sn2_estimate"}})
+				Path: []any{"sn2_estimate"}})
 		}
 		return waterFill(x, weight), warn, nil
 	case SN2Palm:
@@ -406,13 +406,13 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 	case SN2Enrichment:
 		if len(opt.EnrichmentFactors) != n {
 			return nil, nil, chem.Errorf(chem.KindInvalid, "enrichment factors must match the profile's acids").
-				WithField(fmt.Sprintf("%d factors for %d acids", len(opt.EnrichmentFactors), n), "composition", "sn2_enrichment_factors")
+				WithField(fmt.Sprintf("%d factors for %d acids", len(opt.EnrichmentFactors), n), "sn2_enrichment_factors")
 		}
 		bad := chem.Errorf(chem.KindInvalid, "enrichment factors must be finite and non-negative")
 		anyPositive := false
 		for i, e := range opt.EnrichmentFactors {
 			if math.IsNaN(e) || math.IsInf(e, 0) || e < 0 {
-				bad.WithField("must be a finite number >= 0", "composition", "sn2_enrichment_factors", i)
+				bad.WithField("must be a finite number >= 0", "sn2_enrichment_factors", i)
 			}
 			if e > 0 {
 				anyPositive = true
@@ -423,7 +423,7 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 		}
 		if !anyPositive {
 			return nil, nil, chem.Errorf(chem.KindInvalid, "at least one enrichment factor must be positive").
-				WithField("all factors are zero", "composition", "sn2_enrichment_factors")
+				WithField("all factors are zero", "sn2_enrichment_factors")
 		}
 		copy(weight, opt.EnrichmentFactors)
 		return waterFill(x, weight), nil, nil
@@ -431,7 +431,7 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 		return suppliedSN2(p, x, opt.SN2Profile)
 	default:
 		return nil, nil, chem.Errorf(chem.KindInvalid, "unknown sn-2 estimate").
-			WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "composition", "sn2_estimate")
+			WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "sn2_estimate")
 	}
 }
 
@@ -501,7 +501,7 @@ func tierWeight(tier int, w, x float64) float64 {
 func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []chem.Warning, error) {
 	if sn2 == nil || len(sn2.Components) == 0 {
 		return nil, nil, chem.Errorf(chem.KindInvalid, "the supplied sn-2 estimate needs an sn-2 composition").
-			WithField("required when sn2_estimate is supplied", "composition", "sn2_profile")
+			WithField("required when sn2_estimate is supplied", "sn2_profile")
 	}
 	// Acids are matched by canonical ID, so profiles read through different
 	// catalogue instances still match.
@@ -515,7 +515,7 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 		i, ok := index[c.Acid.ID]
 		if !ok {
 			if c.MoleFraction > 0 {
-				bad.WithField(c.Acid.ID+" is at sn-2 but not in the profile", "composition", "sn2_profile", "acids", k)
+				bad.WithField(c.Acid.ID+" is at sn-2 but not in the profile", "sn2_profile", "acids", k)
 			}
 			continue
 		}
@@ -528,7 +528,7 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 		switch {
 		case over > maxSN2Overshoot:
 			bad.WithField(fmt.Sprintf("%s is %.4g mole fraction at sn-2 but at most 3 × %.4g = %.4g is possible",
-				p.Components[i].Acid.ID, b[i], x[i], 3*x[i]), "composition", "sn2_profile")
+				p.Components[i].Acid.ID, b[i], x[i], 3*x[i]), "sn2_profile")
 		case over > 0:
 			b[i] = 3 * x[i]
 			clipped = append(clipped, p.Components[i].Acid.ID)
@@ -556,7 +556,7 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 			"the sn-2 share of %s exceeded three times its overall share by less than %.2g mole fraction; "+
 				"it was clipped to that limit and the excess shared among the other sn-2 acids in proportion",
 			strings.Join(clipped, ", "), maxSN2Overshoot),
-			Path: []any{"composition", "sn2_profile"}})
+			Path: []any{"sn2_profile"}})
 	}
 	return b, warn, nil
 }
@@ -568,7 +568,7 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 // the sn-2 pool as SN2Profile.
 func CombinePools(sn13, sn2 *chem.Profile) (*chem.Profile, error) {
 	if sn13 == nil || sn2 == nil || len(sn13.Components) == 0 || len(sn2.Components) == 0 {
-		return nil, chem.Errorf(chem.KindInvalid, "both pools are required").WithField("a pool is empty", "composition")
+		return nil, chem.Errorf(chem.KindInvalid, "both pools are required").WithField("a pool is empty", "sn2_profile")
 	}
 	var acids []*chem.FattyAcid
 	index := map[string]int{} // by canonical acid ID

@@ -22,12 +22,12 @@ type TAGAmount struct {
 // which must sum to 100 within tol percentage points, are scaled to 100 with
 // a warning when they do not sum exactly. Options.Composition's distribution
 // and sn-2 fields do not apply and must be left at zero. Errors are
-// KindInvalid *chem.Error values with paths ("tags", i, …).
+// KindInvalid *chem.Error values with paths ("triacylglycerols", i, …).
 func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	if opt.Composition.Distribution != 0 || opt.Composition.SN2 != 0 || opt.Composition.SN2Profile != nil ||
 		opt.Composition.EnrichmentFactors != nil {
 		return nil, chem.Errorf(chem.KindInvalid, "a TAG composition takes no distribution or sn-2 options").
-			WithField("not with an explicit TAG composition", "composition")
+			WithField("not with an explicit TAG composition", "distribution")
 	}
 	opt = opt.withDefaults()
 	if err := opt.validate(); err != nil {
@@ -35,15 +35,15 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	}
 	bad := chem.Errorf(chem.KindInvalid, "the TAG composition cannot be used")
 	if len(list) == 0 {
-		bad.WithField("at least one species is required", "tags")
+		bad.WithField("at least one species is required", "triacylglycerols")
 	}
 	var sum float64
 	for i, t := range list {
 		if t.Outer1 == nil || t.Middle == nil || t.Outer2 == nil {
-			bad.WithField("three acids are required", "tags", i)
+			bad.WithField("three acids are required", "triacylglycerols", i)
 		}
 		if math.IsNaN(t.MolePercent) || math.IsInf(t.MolePercent, 0) || t.MolePercent < 0 || t.MolePercent > 100 {
-			bad.WithField("must be a finite number from 0 to 100", "tags", i, "mole_percent")
+			bad.WithField("must be a finite number from 0 to 100", "triacylglycerols", i, "mole_percent")
 			continue
 		}
 		sum += t.MolePercent
@@ -51,9 +51,9 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	if len(bad.Fields) == 0 {
 		switch {
 		case !(sum > 0):
-			bad.WithField("no species with a positive share", "tags")
+			bad.WithField("no species with a positive share", "triacylglycerols")
 		case math.Abs(sum-100) > tol+chem.SumNoise:
-			bad.WithField(fmt.Sprintf("the shares sum to %.4g, outside 100 ± %.4g", sum, tol), "tags")
+			bad.WithField(fmt.Sprintf("the shares sum to %.4g, outside 100 ± %.4g", sum, tol), "triacylglycerols")
 		}
 	}
 	if len(bad.Fields) > 0 {
@@ -89,7 +89,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 		if _, seen := z[k]; seen {
 			warnings = append(warnings, chem.Warning{Code: chem.WarnDuplicateAcid,
 				Message: fmt.Sprintf("species %s/%s/%s appears more than once; the shares were summed",
-					t.Outer1.ID, t.Middle.ID, t.Outer2.ID), Path: []any{"tags", i}})
+					t.Outer1.ID, t.Middle.ID, t.Outer2.ID), Path: []any{"triacylglycerols", i}})
 		} else {
 			order = append(order, k)
 		}
@@ -97,7 +97,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	}
 	if math.Abs(sum-100) > chem.SumNoise {
 		warnings = append(warnings, chem.Warning{Code: chem.WarnNormalised,
-			Message: fmt.Sprintf("the TAG shares summed to %.6g; they were scaled to 100", sum), Path: []any{"tags"}})
+			Message: fmt.Sprintf("the TAG shares summed to %.6g; they were scaled to 100", sum), Path: []any{"triacylglycerols"}})
 	}
 
 	// Positional pools of the composition, for reporting.
@@ -123,7 +123,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 		species = append(species, tagSpecies{z: z[k], mass: mass, idx: [3]int32{int32(k.o1), int32(k.m), int32(k.o2)}})
 	}
 	outsideMass := bd.finish()
-	f.finishWarnings(outside, outsideMass)
+	f.finishWarnings(outside, outsideMass, "triacylglycerols")
 	// The species list is the one given, not an enumeration of the pools.
 	f.full.once.Do(func() {
 		c := *comp

@@ -15,7 +15,7 @@ import (
 func TestExplicitTAGsMatchEnumeratedProfile(t *testing.T) {
 	cat := chem.NewCatalogue()
 	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
-		{Label: "16:0", Percent: 44}, {Label: "18:0", Percent: 5}, {Label: "18:1 c9", Percent: 40}, {Label: "18:2 c9,c12", Percent: 11},
+		{Acid: "16:0", Percent: 44}, {Acid: "18:0", Percent: 5}, {Acid: "18:1 c9", Percent: 40}, {Acid: "18:2 c9,c12", Percent: 11},
 	}, 0)
 	require.NoError(t, err)
 	for _, model := range []SolidModel{SolidSolutionFamilies, MultiplePureSolids, IdealSolidSolution} {
@@ -34,7 +34,7 @@ func TestExplicitTAGsMatchEnumeratedProfile(t *testing.T) {
 		b, err := explicit.Melt()
 		require.NoError(t, err)
 		for i := range a.Curve {
-			require.InDelta(t, a.Curve[i].SFCPercent, b.Curve[i].SFCPercent, 1e-9, "%s at %g °C", model, a.Curve[i].TemperatureC)
+			require.InDelta(t, a.Curve[i].SolidFatPercent, b.Curve[i].SolidFatPercent, 1e-9, "%s at %g °C", model, a.Curve[i].TemperatureC)
 		}
 		require.InDelta(t, a.SlipMeltingPointC, b.SlipMeltingPointC, 1e-6)
 		require.InDelta(t, a.ClearPointC, b.ClearPointC, 1e-6)
@@ -53,11 +53,11 @@ func TestExplicitTAGsRejects(t *testing.T) {
 		opt  Options
 		path []any
 	}{
-		{"empty", nil, Options{}, []any{"tags"}},
-		{"missing acid", []TAGAmount{{Outer1: pal, Middle: nil, Outer2: pal, MolePercent: 100}}, Options{}, []any{"tags", 0}},
-		{"negative", []TAGAmount{{pal, ole, pal, -1}, {pal, pal, pal, 101}}, Options{}, []any{"tags", 0, "mole_percent"}},
-		{"sum off", []TAGAmount{{pal, ole, pal, 50}, {ole, ole, ole, 40}}, Options{}, []any{"tags"}},
-		{"distribution", []TAGAmount{{pal, ole, pal, 100}}, Options{Composition: CompositionOptions{Distribution: FullRandom}}, []any{"composition"}},
+		{"empty", nil, Options{}, []any{"triacylglycerols"}},
+		{"missing acid", []TAGAmount{{Outer1: pal, Middle: nil, Outer2: pal, MolePercent: 100}}, Options{}, []any{"triacylglycerols", 0}},
+		{"negative", []TAGAmount{{pal, ole, pal, -1}, {pal, pal, pal, 101}}, Options{}, []any{"triacylglycerols", 0, "mole_percent"}},
+		{"sum off", []TAGAmount{{pal, ole, pal, 50}, {ole, ole, ole, 40}}, Options{}, []any{"triacylglycerols"}},
+		{"distribution", []TAGAmount{{pal, ole, pal, 100}}, Options{Composition: CompositionOptions{Distribution: FullRandom}}, []any{"distribution"}},
 	}
 	for _, c := range cases {
 		_, err := PrepareTAGs(c.list, c.opt, 0.5)
@@ -83,16 +83,16 @@ func TestExplicitTAGsRejects(t *testing.T) {
 func TestTraceAcidsUnderflow(t *testing.T) {
 	cat := chem.NewCatalogue()
 	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
-		{Label: "16:0", Percent: 50}, {Label: "18:1 c9", Percent: 50}, {Label: "18:3 c9,c12,c15", Percent: 1e-120},
+		{Acid: "16:0", Percent: 50}, {Acid: "18:1 c9", Percent: 50}, {Acid: "18:3 c9,c12,c15", Percent: 1e-120},
 	}, 0)
 	require.NoError(t, err)
 	for _, model := range []SolidModel{SolidSolutionFamilies, MultiplePureSolids, IdealSolidSolution} {
-		r, err := Melt(p, Options{SolidModel: model})
+		r, err := MeltProfile(p, Options{SolidModel: model})
 		require.NoError(t, err, model)
 		require.False(t, math.IsNaN(r.ClearPointC), model)
 		require.False(t, math.IsNaN(r.SlipMeltingPointC), model)
 		for _, pt := range r.Curve {
-			require.False(t, math.IsNaN(pt.SFCPercent), model)
+			require.False(t, math.IsNaN(pt.SolidFatPercent), model)
 		}
 	}
 }
@@ -103,12 +103,12 @@ func TestTraceAcidsUnderflow(t *testing.T) {
 func TestCompareMatchesCalibrationReport(t *testing.T) {
 	cat := chem.NewCatalogue()
 	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
-		{Label: "16:0", Percent: 44}, {Label: "18:0", Percent: 5}, {Label: "18:1 c9", Percent: 40}, {Label: "18:2 c9,c12", Percent: 11},
+		{Acid: "16:0", Percent: 44}, {Acid: "18:0", Percent: 5}, {Acid: "18:1 c9", Percent: 40}, {Acid: "18:2 c9,c12", Percent: 11},
 	}, 0)
 	require.NoError(t, err)
 	// Invented measurements for the test, not published data.
 	m := Measurements{SFC: []SFCPoint{{10, 50}, {20, 25}, {30, 8}}, SlipMeltingPointC: 35, HasSlipMeltingPoint: true}
-	rep, err := Calibrate(context.Background(), p, Options{}, m)
+	rep, err := CalibrateProfile(context.Background(), p, Options{}, m)
 	require.NoError(t, err)
 	f, err := Prepare(p, Options{Calibration: rep.Calibration})
 	require.NoError(t, err)

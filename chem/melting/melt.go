@@ -147,13 +147,13 @@ func (o Options) validate() error {
 		bad.WithField("must be multiple_pure_solids, ideal_solid_solution or solid_solution_families", "solid_model")
 	}
 	if o.Composition.Distribution != Positional && o.Composition.Distribution != FullRandom {
-		bad.WithField("must be sn13_random_sn2_random or full_random", "composition", "distribution")
+		bad.WithField("must be sn13_random_sn2_random or full_random", "distribution")
 	}
 	if o.Composition.SN2 < SN2SeedOil || o.Composition.SN2 > SN2Enrichment {
-		bad.WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "composition", "sn2_estimate")
+		bad.WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "sn2_estimate")
 	}
 	if f := o.Composition.PoolFloorMoleFraction; !(f > 0 && f <= 0.01) {
-		bad.WithField("must be > 0 and <= 0.01", "composition", "pool_floor_mole_fraction")
+		bad.WithField("must be > 0 and <= 0.01", "pool_floor_mole_fraction")
 	}
 	if len(o.TemperaturesC) > MaxTemperatures {
 		bad.WithField(fmt.Sprintf("at most %d temperatures", MaxTemperatures), "temperatures_c")
@@ -186,6 +186,11 @@ func (o Options) validate() error {
 	}
 	return nil
 }
+
+// Validate checks the options, with their defaults filled, and returns a
+// KindInvalid *chem.Error whose paths name the request fields ("polymorph",
+// "distribution", "calibration", "temperature_shift_k", …), or nil.
+func (o Options) Validate() error { return o.withDefaults().validate() }
 
 // slipThreshold is the threshold in force: the calibration's if set.
 func (o Options) slipThreshold() float64 {
@@ -230,7 +235,7 @@ func Prepare(p *chem.Profile, opt Options) (*Fat, error) {
 	f.warnings = append(f.warnings, comp.Warnings...)
 	pr, outside := prepareAcids(comp.Acids, comp.Total, opt.Polymorph)
 	outsideMass := f.build(pr)
-	f.finishWarnings(outside, outsideMass)
+	f.finishWarnings(outside, outsideMass, "profile", "acids")
 	return f, nil
 }
 
@@ -281,21 +286,22 @@ func prepareAcids(acids []*chem.FattyAcid, shares []float64, p Polymorph) (prepa
 		thetaK: coef.CompensationTemperatureK, overrides: resolveOverrides(acids, p)}, outside
 }
 
-// finishWarnings adds the warnings about acids outside the fit and pooling.
-func (f *Fat) finishWarnings(outside []string, outsideMass float64) {
+// finishWarnings adds the warnings about acids outside the fit, which
+// point at acidsPath (where the caller gave the acids), and about pooling.
+func (f *Fat) finishWarnings(outside []string, outsideMass float64, acidsPath ...any) {
 	opt := f.opt
 	if len(outside) > 0 {
 		f.warnings = append(f.warnings, chem.Warning{Code: WarnOutsideFit, Message: fmt.Sprintf(
 			"%s %s outside the pure-TAG data the property correlation was fitted to; the species containing "+
 				"them (%.3g %% of the mass) use extrapolated melting properties", strings.Join(outside, ", "),
-			plural(len(outside), "is", "are"), 100*outsideMass/f.totalMass), Path: []any{"acids"}})
+			plural(len(outside), "is", "are"), 100*outsideMass/f.totalMass), Path: acidsPath})
 	}
 	if f.pooledSpecies > 0 {
 		f.warnings = append(f.warnings, chem.Warning{Code: WarnPooled, Message: fmt.Sprintf(
 			"%d species below a mole fraction of %.3g (%.3g %% of the mass) were pooled into %d components "+
 				"by melting point (%g K bins)", f.pooledSpecies, opt.Composition.PoolFloorMoleFraction,
 			f.pooledMassPercent, f.mixture.Len()-(f.speciesCount-f.pooledSpecies), poolBinK),
-			Path: []any{"composition", "pool_floor_mole_fraction"}})
+		})
 	}
 }
 
@@ -494,8 +500,8 @@ func (f *Fat) slipPoint(w *workspace, known []curvePoint, clear float64) (float6
 // SFCPoint is one point of a solid fat content curve.
 type SFCPoint struct {
 	TemperatureC float64
-	// SFCPercent is the solid fat content, mass %.
-	SFCPercent float64
+	// SolidFatPercent is the solid fat content, mass %.
+	SolidFatPercent float64
 }
 
 // SpeciesShare is one TAG species of a result.
@@ -535,8 +541,11 @@ type Result struct {
 	// down to MinTemperatureC and the value is MinTemperatureC.
 	SlipMeltingPointC       float64
 	SlipMeltingPointDefined bool
-	// ClearPointC is where the SFC reaches zero.
-	ClearPointC float64
+	// ClearPointC is where the SFC reaches zero. ClearPointDefined is false
+	// when that is below MinTemperatureC: the fat is liquid over the whole
+	// range of the model.
+	ClearPointC       float64
+	ClearPointDefined bool
 	// SFCAt37CPercent is the SFC at 37 °C (mouth temperature).
 	SFCAt37CPercent float64
 	// MainSpecies are the largest species by mass, largest first.
@@ -556,10 +565,10 @@ type Result struct {
 	Warnings    []chem.Warning
 }
 
-// Melt computes the melting behaviour of a fat from its profile. Errors are
+// MeltProfile computes the melting behaviour of a fat from its profile. Errors are
 // *chem.Error values: KindInvalid for bad options, KindNoConvergence if an
 // iterative solver hits its cap.
-func Melt(p *chem.Profile, opt Options) (*Result, error) {
+func MeltProfile(p *chem.Profile, opt Options) (*Result, error) {
 	f, err := Prepare(p, opt)
 	if err != nil {
 		return nil, err
@@ -616,6 +625,7 @@ func (f *Fat) Melt() (*Result, error) {
 		r.ReportingPoints = append(r.ReportingPoints, SFCPoint{t, sfcAt[t]})
 	}
 	r.ClearPointC = clear - zeroCelsiusK
+	r.ClearPointDefined = r.ClearPointC >= MinTemperatureC
 	slip, ok, err := f.slipPoint(w, known, clear)
 	if err != nil {
 		return nil, err

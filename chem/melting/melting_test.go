@@ -21,7 +21,7 @@ func profileOf(t testing.TB, lines ...acidPct) *chem.Profile {
 	t.Helper()
 	entries := make([]chem.Entry, len(lines))
 	for i, l := range lines {
-		entries[i] = chem.Entry{Label: l.label, Percent: l.pct}
+		entries[i] = chem.Entry{Acid: l.label, Percent: l.pct}
 	}
 	p, err := chem.NewProfile(chem.NewCatalogue(), chem.BasisFAMEWeight, entries, 0.5)
 	require.NoError(t, err)
@@ -243,7 +243,7 @@ func TestPalmRuleReproducesPublishedSN2(t *testing.T) {
 func TestSuppliedSN2AndPools(t *testing.T) {
 	cat := chem.NewCatalogue()
 	total := palmLike(t)
-	sn2, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Label: "16:0", Percent: 12}, {Label: "18:1", Percent: 66}, {Label: "18:2", Percent: 22}}, 0)
+	sn2, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Acid: "16:0", Percent: 12}, {Acid: "18:1", Percent: 66}, {Acid: "18:2", Percent: 22}}, 0)
 	require.NoError(t, err)
 	c, err := TAGComposition(total, CompositionOptions{SN2: SN2Supplied, SN2Profile: sn2})
 	require.NoError(t, err)
@@ -266,20 +266,20 @@ func TestSuppliedSN2AndPools(t *testing.T) {
 		require.InDelta(t, c.Species[i].MoleFraction, c2.Species[i].MoleFraction, 1e-12)
 	}
 	// An impossible sn-2 composition is rejected with a field path.
-	bad, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Label: "18:0", Percent: 50}, {Label: "18:1", Percent: 50}}, 0)
+	bad, err := chem.NewProfile(cat, chem.BasisMole, []chem.Entry{{Acid: "18:0", Percent: 50}, {Acid: "18:1", Percent: 50}}, 0)
 	require.NoError(t, err)
 	_, err = TAGComposition(total, CompositionOptions{SN2: SN2Supplied, SN2Profile: bad})
 	ce, ok := chem.AsError(err)
 	require.True(t, ok)
 	require.Equal(t, chem.KindInvalid, ce.Kind)
-	require.Equal(t, []any{"composition", "sn2_profile"}, ce.Fields[0].Path)
+	require.Equal(t, []any{"sn2_profile"}, ce.Fields[0].Path)
 	// Missing sn-2 profile.
 	_, err = TAGComposition(total, CompositionOptions{SN2: SN2Supplied})
 	require.Error(t, err)
 	// Enrichment factors of the wrong length.
 	_, err = TAGComposition(total, CompositionOptions{SN2: SN2Enrichment, EnrichmentFactors: []float64{1}})
 	ce, _ = chem.AsError(err)
-	require.Equal(t, []any{"composition", "sn2_enrichment_factors"}, ce.Fields[0].Path)
+	require.Equal(t, []any{"sn2_enrichment_factors"}, ce.Fields[0].Path)
 }
 
 func TestOptionsValidation(t *testing.T) {
@@ -293,9 +293,9 @@ func TestOptionsValidation(t *testing.T) {
 		{Options{TemperaturesC: []float64{20, math.NaN()}}, []any{"temperatures_c", 1}},
 		{Options{SlipThresholdPercent: -1}, []any{"slip_threshold_percent"}},
 		{Options{Calibration: Calibration{TemperatureShiftK: 40}}, []any{"calibration", "temperature_shift_k"}},
-		{Options{Composition: CompositionOptions{PoolFloorMoleFraction: 0.5}}, []any{"composition", "pool_floor_mole_fraction"}},
+		{Options{Composition: CompositionOptions{PoolFloorMoleFraction: 0.5}}, []any{"pool_floor_mole_fraction"}},
 	} {
-		_, err := Melt(p, c.opt)
+		_, err := MeltProfile(p, c.opt)
 		ce, ok := chem.AsError(err)
 		require.True(t, ok)
 		require.Equal(t, chem.KindInvalid, ce.Kind)
@@ -327,10 +327,10 @@ func TestCurvesAreMonotoneAndConsistent(t *testing.T) {
 		for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution, SolidSolutionFamilies} {
 			for _, poly := range []Polymorph{Alpha, BetaPrime, Beta} {
 				opt := Options{Polymorph: poly, SolidModel: model, TemperaturesC: temps, Composition: CompositionOptions{SN2: fat.sn2}}
-				r, err := Melt(fat.p, opt)
+				r, err := MeltProfile(fat.p, opt)
 				require.NoError(t, err)
 				for i := 1; i < len(r.Curve); i++ {
-					require.LessOrEqual(t, r.Curve[i].SFCPercent, r.Curve[i-1].SFCPercent+1e-9,
+					require.LessOrEqual(t, r.Curve[i].SolidFatPercent, r.Curve[i-1].SolidFatPercent+1e-9,
 						"%s %s %s: SFC rises between %g and %g °C", name, model, poly, r.Curve[i-1].TemperatureC, r.Curve[i].TemperatureC)
 				}
 				f, err := Prepare(fat.p, opt)
@@ -371,9 +371,9 @@ func TestPoolingChangesLittle(t *testing.T) {
 		MultiplePureSolids: {0.25, 0.3}, IdealSolidSolution: {0.25, 0.3}, SolidSolutionFamilies: {0.1, 0.03}}
 	for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution, SolidSolutionFamilies} {
 		for _, p := range []*chem.Profile{palmLike(t), soyLike(t), coco} {
-			pooled, err := Melt(p, Options{SolidModel: model, Composition: CompositionOptions{SN2: SN2Palm}})
+			pooled, err := MeltProfile(p, Options{SolidModel: model, Composition: CompositionOptions{SN2: SN2Palm}})
 			require.NoError(t, err)
-			full, err := Melt(p, Options{SolidModel: model, Composition: CompositionOptions{SN2: SN2Palm, NoPooling: true}})
+			full, err := MeltProfile(p, Options{SolidModel: model, Composition: CompositionOptions{SN2: SN2Palm, NoPooling: true}})
 			require.NoError(t, err)
 			if model != SolidSolutionFamilies {
 				require.Less(t, pooled.PooledMassPercent, 3.0)
@@ -383,7 +383,7 @@ func TestPoolingChangesLittle(t *testing.T) {
 				require.InDelta(t, full.SlipMeltingPointC, pooled.SlipMeltingPointC, tol[model].k, "%s slip", model)
 			}
 			for i := range full.Curve {
-				require.InDelta(t, full.Curve[i].SFCPercent, pooled.Curve[i].SFCPercent, tol[model].sfc,
+				require.InDelta(t, full.Curve[i].SolidFatPercent, pooled.Curve[i].SolidFatPercent, tol[model].sfc,
 					"%s SFC at %g °C", model, full.Curve[i].TemperatureC)
 			}
 		}
@@ -391,7 +391,7 @@ func TestPoolingChangesLittle(t *testing.T) {
 }
 
 func TestMeltReportsSpeciesAndWarnings(t *testing.T) {
-	r, err := Melt(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2Palm}})
+	r, err := MeltProfile(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2Palm}})
 	require.NoError(t, err)
 	require.Len(t, r.MainSpecies, DefaultMainSpecies)
 	require.Equal(t, "POP", r.MainSpecies[0].ShortName)
@@ -427,13 +427,13 @@ func TestCalibrationRecoversShift(t *testing.T) {
 	opt := Options{Composition: CompositionOptions{SN2: SN2Palm}}
 	truth := opt
 	truth.Calibration = Calibration{TemperatureShiftK: 3.5}
-	ref, err := Melt(p, truth)
+	ref, err := MeltProfile(p, truth)
 	require.NoError(t, err)
 	var pts []SFCPoint
 	for _, q := range ref.ReportingPoints {
 		pts = append(pts, q)
 	}
-	rep, err := Calibrate(context.Background(), p, opt, Measurements{SFC: pts, SlipMeltingPointC: ref.SlipMeltingPointC, HasSlipMeltingPoint: true})
+	rep, err := CalibrateProfile(context.Background(), p, opt, Measurements{SFC: pts, SlipMeltingPointC: ref.SlipMeltingPointC, HasSlipMeltingPoint: true})
 	require.NoError(t, err)
 	require.InDelta(t, 3.5, rep.Calibration.TemperatureShiftK, 1e-3)
 	require.InDelta(t, DefaultSlipThresholdPercent, rep.Calibration.SlipThresholdPercent, 1e-3)
@@ -443,18 +443,18 @@ func TestCalibrationRecoversShift(t *testing.T) {
 
 	// Slip point only: the published palm oil slip point, 36 °C, middle of
 	// 33-39 °C [Codex CXS 210; trade specification].
-	rep, err = Calibrate(context.Background(), p, opt, Measurements{SlipMeltingPointC: 36, HasSlipMeltingPoint: true})
+	rep, err = CalibrateProfile(context.Background(), p, opt, Measurements{SlipMeltingPointC: 36, HasSlipMeltingPoint: true})
 	require.NoError(t, err)
 	// The threshold the shift was fitted with travels with the calibration.
 	require.Equal(t, DefaultSlipThresholdPercent, rep.Calibration.SlipThresholdPercent)
 	require.InDelta(t, 0, rep.After.SlipErrorK, 1e-3)
 	require.Greater(t, math.Abs(rep.Before.SlipErrorK), math.Abs(rep.After.SlipErrorK))
 	opt.Calibration = rep.Calibration
-	r, err := Melt(p, opt)
+	r, err := MeltProfile(p, opt)
 	require.NoError(t, err)
 	require.InDelta(t, 36, r.SlipMeltingPointC, 1e-3)
 
-	_, err = Calibrate(context.Background(), p, opt, Measurements{})
+	_, err = CalibrateProfile(context.Background(), p, opt, Measurements{})
 	ce, ok := chem.AsError(err)
 	require.True(t, ok)
 	require.Equal(t, chem.KindInvalid, ce.Kind)
@@ -645,20 +645,20 @@ func TestSeedOilRuleWarnsOnPalmLikeFat(t *testing.T) {
 		}
 		return chem.Warning{}, false
 	}
-	seed, err := Melt(palmLike(t), Options{})
+	seed, err := MeltProfile(palmLike(t), Options{})
 	require.NoError(t, err)
 	w, ok := has(seed.Warnings)
 	require.True(t, ok, "%v", seed.Warnings)
-	require.Equal(t, []any{"composition", "sn2_estimate"}, w.Path)
+	require.Equal(t, []any{"sn2_estimate"}, w.Path)
 	require.Contains(t, w.Message, "palm_rule")
 
-	palm, err := Melt(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2Palm}})
+	palm, err := MeltProfile(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2Palm}})
 	require.NoError(t, err)
 	_, ok = has(palm.Warnings)
 	require.False(t, ok)
 	require.InDelta(t, 11, palm.SlipMeltingPointC-seed.SlipMeltingPointC, 2, "the message says about 11 K")
 
-	soy, err := Melt(soyLike(t), Options{})
+	soy, err := MeltProfile(soyLike(t), Options{})
 	require.NoError(t, err)
 	_, ok = has(soy.Warnings)
 	require.False(t, ok, "soybean oil has about 10 %% palmitic acid")
@@ -674,7 +674,7 @@ func TestSuppliedSN2ClipKeepsTheBalance(t *testing.T) {
 	mole := func(lines ...acidPct) *chem.Profile {
 		var e []chem.Entry
 		for _, l := range lines {
-			e = append(e, chem.Entry{Label: l.label, Percent: l.pct})
+			e = append(e, chem.Entry{Acid: l.label, Percent: l.pct})
 		}
 		p, err := chem.NewProfile(cat, chem.BasisMole, e, 0.5)
 		require.NoError(t, err)
@@ -707,7 +707,7 @@ func TestEutecticModelNeverPools(t *testing.T) {
 	p := profileOf(t, acidPct{"14:0", 0.5}, acidPct{"16:0", 8}, acidPct{"18:0", 3}, acidPct{"20:0", 0.8}, acidPct{"22:0", 0.8},
 		acidPct{"24:0", 0.4}, acidPct{"18:1", 25}, acidPct{"18:2", 54}, acidPct{"18:3", 7.5})
 	for _, floor := range []float64{0, 1e-4, 0.01} {
-		r, err := Melt(p, Options{SolidModel: MultiplePureSolids,
+		r, err := MeltProfile(p, Options{SolidModel: MultiplePureSolids,
 			Composition: CompositionOptions{Distribution: FullRandom, PoolFloorMoleFraction: floor}})
 		require.NoError(t, err)
 		require.Zero(t, r.PooledSpecies)
@@ -733,21 +733,21 @@ func TestCalibrationOnOwnCurveAndFlatPoints(t *testing.T) {
 	for _, tc := range []float64{10, 20, 30} {
 		v, err := f.SolidFatContent(tc)
 		require.NoError(t, err)
-		own.SFC = append(own.SFC, SFCPoint{TemperatureC: tc, SFCPercent: v})
+		own.SFC = append(own.SFC, SFCPoint{TemperatureC: tc, SolidFatPercent: v})
 	}
-	rep, err := Calibrate(context.Background(), p, opt, own)
+	rep, err := CalibrateProfile(context.Background(), p, opt, own)
 	require.NoError(t, err)
 	require.InDelta(t, 0, rep.Calibration.TemperatureShiftK, 1e-3)
 	require.Empty(t, rep.Warnings)
 
-	flat := Measurements{SFC: []SFCPoint{{TemperatureC: 80, SFCPercent: 0}, {TemperatureC: 90, SFCPercent: 0}}}
-	rep, err = Calibrate(context.Background(), p, opt, flat)
+	flat := Measurements{SFC: []SFCPoint{{TemperatureC: 80, SolidFatPercent: 0}, {TemperatureC: 90, SolidFatPercent: 0}}}
+	rep, err = CalibrateProfile(context.Background(), p, opt, flat)
 	require.NoError(t, err)
 	require.Equal(t, 0.0, rep.Calibration.TemperatureShiftK)
 	require.Empty(t, rep.Warnings, "no error to remove")
 
-	flat.SFC[0].SFCPercent = 5 // an error no shift can remove
-	rep, err = Calibrate(context.Background(), p, opt, flat)
+	flat.SFC[0].SolidFatPercent = 5 // an error no shift can remove
+	rep, err = CalibrateProfile(context.Background(), p, opt, flat)
 	require.NoError(t, err)
 	require.Equal(t, 0.0, rep.Calibration.TemperatureShiftK)
 	require.Len(t, rep.Warnings, 1)
@@ -780,7 +780,7 @@ func TestSolidFatContentRejectsBadInput(t *testing.T) {
 // products list every acid the network can form) is not named in the
 // outside-fit warning; one the fat holds is.
 func TestOutsideFitNamesOnlyPresentAcids(t *testing.T) {
-	r, err := Melt(profileOf(t, acidPct{"16:0", 44}, acidPct{"18:1", 45}, acidPct{"18:2", 10}, acidPct{"20:1", 1},
+	r, err := MeltProfile(profileOf(t, acidPct{"16:0", 44}, acidPct{"18:1", 45}, acidPct{"18:2", 10}, acidPct{"20:1", 1},
 		acidPct{"22:6", 0}), Options{Composition: CompositionOptions{SN2: SN2Palm}})
 	require.NoError(t, err)
 	var msg string

@@ -40,14 +40,14 @@ func TestRandomProfilesKeepInvariants(t *testing.T) {
 		case 3:
 			opt.Composition.NoPooling = true
 		}
-		r, err := Melt(p, opt)
+		r, err := MeltProfile(p, opt)
 		require.NoError(t, err, "case %d: %v %+v", k, entries, opt)
 		for i, pt := range r.Curve {
-			require.False(t, math.IsNaN(pt.SFCPercent), "case %d", k)
-			require.GreaterOrEqual(t, pt.SFCPercent, 0.0, "case %d", k)
-			require.LessOrEqual(t, pt.SFCPercent, 100.0, "case %d", k)
+			require.False(t, math.IsNaN(pt.SolidFatPercent), "case %d", k)
+			require.GreaterOrEqual(t, pt.SolidFatPercent, 0.0, "case %d", k)
+			require.LessOrEqual(t, pt.SolidFatPercent, 100.0, "case %d", k)
 			if i > 0 {
-				require.LessOrEqual(t, pt.SFCPercent, r.Curve[i-1].SFCPercent+1e-9,
+				require.LessOrEqual(t, pt.SolidFatPercent, r.Curve[i-1].SolidFatPercent+1e-9,
 					"case %d: SFC rises at %g °C (%v %+v)", k, pt.TemperatureC, entries, opt)
 			}
 		}

@@ -108,7 +108,7 @@ func runValidation(t testing.TB, cases []validationCase) []configResult {
 				for _, c := range cases {
 					opt := Options{Polymorph: poly, SolidModel: model, SlipThresholdPercent: thr,
 						Composition: CompositionOptions{SN2: c.sn2(t)}}
-					r, err := Melt(c.profile(t), opt)
+					r, err := MeltProfile(c.profile(t), opt)
 					require.NoError(t, err)
 					s := r.SlipMeltingPointC
 					cr.slip = append(cr.slip, s)
@@ -208,9 +208,9 @@ func validationMarkdown(t testing.TB, cases, reported []validationCase, results 
 		for _, k := range keys {
 			parts = append(parts, fmt.Sprintf("%s %g", k, c.Composition[k]))
 		}
-		iv := fmt.Sprintf("%.2f / –", chem.ComputeProperties(c.profile(t), chem.MaterialTAG).IodineValue)
+		iv := fmt.Sprintf("%.2f / –", chem.PropertiesOf(c.profile(t), chem.MaterialTAG).IodineValue)
 		if c.IVMeasured > 0 {
-			iv = fmt.Sprintf("%.2f / %g", chem.ComputeProperties(c.profile(t), chem.MaterialTAG).IodineValue, c.IVMeasured)
+			iv = fmt.Sprintf("%.2f / %g", chem.PropertiesOf(c.profile(t), chem.MaterialTAG).IodineValue, c.IVMeasured)
 		}
 		name := c.Name
 		if c.NotScored {
@@ -322,7 +322,7 @@ func validationMarkdown(t testing.TB, cases, reported []validationCase, results 
 	if len(reported) > 0 {
 		w("\n## Reported, not scored (default configuration)\n\n| case | published target °C | predicted °C | error K | why not scored |\n|---|---|---|---|---|\n")
 		for _, c := range reported {
-			r, err := Melt(c.profile(t), Options{Composition: CompositionOptions{SN2: c.sn2(t)}})
+			r, err := MeltProfile(c.profile(t), Options{Composition: CompositionOptions{SN2: c.sn2(t)}})
 			require.NoError(t, err)
 			w("| %s | %g | %.1f | %+.1f | %s |\n", c.Name, c.SlipTarget, r.SlipMeltingPointC, r.SlipMeltingPointC-c.SlipTarget, c.NotScoredReason)
 		}
@@ -350,11 +350,11 @@ func validationMarkdown(t testing.TB, cases, reported []validationCase, results 
 			if model != DefaultSolidModel {
 				opt.SolidModel, opt.SlipThresholdPercent = model, 3
 			}
-			r, err := Melt(c.profile(t), opt)
+			r, err := MeltProfile(c.profile(t), opt)
 			require.NoError(t, err)
 			at := map[float64]float64{}
 			for _, p := range r.ReportingPoints {
-				at[p.TemperatureC] = p.SFCPercent
+				at[p.TemperatureC] = p.SolidFatPercent
 			}
 			w("| %s | %s | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f | %.1f |\n", c.Name, model,
 				at[10], at[20], at[25], at[30], at[35], at[37], at[40], r.SlipMeltingPointC, r.ClearPointC)

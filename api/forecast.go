@@ -57,12 +57,6 @@ type ForecastRequest struct {
 	Melting    *MeltingModel    `json:"melting,omitempty"`
 }
 
-// ProfileOut is a composition in the profile shape.
-type ProfileOut struct {
-	Basis string      `json:"basis"`
-	Acids []EntryBody `json:"acids"`
-}
-
 // ForecastPoint is one row of the path table.
 type ForecastPoint struct {
 	IodineValue        float64            `json:"iodine_value"`
@@ -140,194 +134,58 @@ func fromCatalyst(c hardening.Catalyst) CatalystParameters {
 	}
 }
 
-// toCatalyst resolves a catalyst choice at the JSON pointer path.
-func toCatalyst(ch *CatalystChoice, path string) (hardening.Catalyst, *string, error) {
-	if ch == nil {
-		return hardening.Catalyst{}, nil, NewError(KindMalformed, "the catalyst is missing",
-			FieldError{Pointer: path, Reason: "a preset or the six parameters are required"})
-	}
-	var c hardening.Catalyst
-	var preset *string
-	if ch.Preset != "" {
-		p, ok := hardening.PresetByName(ch.Preset)
-		if !ok {
-			return c, nil, NewError(KindMalformed, "unknown catalyst preset",
-				FieldError{Pointer: path + "/preset", Reason: "not a known preset; see GET /v1/hardening/presets"})
-		}
-		c = p.Catalyst
-		name := p.Name
-		preset = &name
-	}
-	var missing []FieldError
-	set := func(dst *float64, v *float64, name string) {
-		switch {
-		case v != nil:
-			*dst = *v
-		case preset == nil:
-			missing = append(missing, FieldError{Pointer: path + "/" + name, Reason: "required without a preset"})
-		}
-	}
-	set(&c.LinolenicSelectivity, ch.LinolenicSelectivity, "linolenic_selectivity")
-	set(&c.LinoleicSelectivity, ch.LinoleicSelectivity, "linoleic_selectivity")
-	set(&c.TransShare, ch.TransShare, "trans_share")
-	set(&c.IsomerisationRate, ch.IsomerisationRate, "isomerisation_rate")
-	set(&c.TransCisEquilibrium, ch.TransCisEquilibrium, "trans_cis_equilibrium")
-	set(&c.TransSaturationRate, ch.TransSaturationRate, "trans_saturation_rate")
-	if len(missing) > 0 {
-		return c, nil, NewError(KindMalformed, "give a preset or all six catalyst parameters", missing...)
-	}
-	return c, preset, nil
+// input copies a catalyst choice into the science's shape.
+func (ch *CatalystChoice) input() *hardening.CatalystInput {
+	return (*hardening.CatalystInput)(ch)
 }
 
-func toForecastTarget(t *HardeningTarget) (hardening.Target, error) {
-	n := 0
-	var tg hardening.Target
-	if t != nil {
-		if t.IodineValue != nil {
-			n++
-			tg = hardening.FinalIodineValue(*t.IodineValue)
-		}
-		if t.IodineValueDrop != nil {
-			n++
-			tg = hardening.IodineValueDrop(*t.IodineValueDrop)
-		}
-		if t.HydrogenKgPerTonne != nil {
-			n++
-			tg = hardening.HydrogenKgPerTonne(*t.HydrogenKgPerTonne)
-		}
-		if t.SlipMeltingPointC != nil {
-			n++
-		}
+// input copies the request into the science's shape.
+func (b *ForecastRequest) input() hardening.ForecastInput {
+	in := hardening.ForecastInput{
+		Profile:    b.Profile.input(),
+		Sn2Profile: b.Sn2Profile.input(),
+		Catalyst:   b.Catalyst.input(),
+		PathPoints: intPtr(b.PathPoints),
 	}
-	if n != 1 {
-		return tg, NewError(KindMalformed, "give exactly one target",
-			FieldError{Pointer: "/target", Reason: "exactly one of iodine_value, iodine_value_drop, hydrogen_kg_per_tonne and slip_melting_point_c is required"})
+	if t := b.Target; t != nil {
+		in.Target = (*hardening.ForecastTargetInput)(t)
 	}
-	return tg, nil
+	if m := b.Melting; m != nil {
+		in.Melting = m.input()
+	}
+	return in
 }
-
-// renameFirst returns a path mapper that renames the first element of a
-// chem path onto the request's field names.
-func renameFirst(renames map[string]string) func([]any) []any {
-	return func(path []any) []any {
-		if len(path) == 0 {
-			return path
-		}
-		if first, ok := path[0].(string); ok {
-			if r, ok := renames[first]; ok {
-				return append([]any{r}, path[1:]...)
-			}
-		}
-		return path
-	}
-}
-
-var forecastPath = renameFirst(map[string]string{"feed": "profile", "sn2": "sn2_profile"})
 
 func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		var body ForecastRequest
-		if err := decodeStrict(c, &body); err != nil {
+		if err := decode(c, &body); err != nil {
 			return err
 		}
-		feed, err := toChemProfile(cat, body.Profile, "profile")
+		res, err := hardening.Forecast(c.Request().Context(), cat, body.input())
 		if err != nil {
 			return err
 		}
-		var sn2 *chem.Profile
-		if body.Sn2Profile != nil {
-			if sn2, err = toChemProfile(cat, body.Sn2Profile, "sn2_profile"); err != nil {
-				return err
-			}
-		}
-		target, err := toForecastTarget(body.Target)
-		if err != nil {
-			return err
-		}
-		catalyst, preset, err := toCatalyst(body.Catalyst, "/catalyst")
-		if err != nil {
-			return err
-		}
-		req := hardening.NewForecastRequest(feed, target, catalyst)
-		req.Sn2 = sn2
-		if body.PathPoints != nil {
-			req.PathPoints = int(*body.PathPoints)
-		}
-		var res *hardening.ForecastResult
-		var meltingTarget *MeltingTargetBody
-		if body.Target.SlipMeltingPointC != nil {
-			mb := MeltingRequest{}
-			if body.Melting != nil {
-				mb.MeltingModel = *body.Melting
-				// The hardened sn-2 pools of sn2_profile fix sn-2 for the
-				// melting model: an estimate or full randomisation beside
-				// them would be ignored, so refuse them.
-				fields := refused("not with sn2_profile, whose hardened pools fix sn-2",
-					field{body.Sn2Profile != nil && mb.Sn2Estimate != "", "/melting/sn2_estimate"},
-					field{body.Sn2Profile != nil && mb.Distribution == "full_random", "/melting/distribution"})
-				if len(fields) > 0 {
-					return errSn2TwoWays(fields)
-				}
-			}
-			mopt, _, err := toMeltingOptions(cat, &mb, feed, "/melting")
-			if err != nil {
-				return err
-			}
-			st, err := hardening.ForecastToSlipMeltingPoint(c.Request().Context(), cat, req, *body.Target.SlipMeltingPointC, mopt)
-			if err != nil {
-				return mapErrorPaths(err, func(p []any) []any { return forecastPath(meltingPathUnder(p, "melting")) })
-			}
-			res = st.ForecastResult
-			rec.SolverIterations("slip_melting_point_search", st.Evaluations)
-			// The melting warnings concern the product, whose acids are not
-			// the request's; only those about melting options keep a pointer.
-			res.Warnings = append(res.Warnings, mapWarningPaths(st.MeltingWarnings, func(p []any) []any {
-				if len(p) > 0 && p[0] == "composition" {
-					return meltingPathUnder(p, "melting")
-				}
-				return nil
-			})...)
-			meltingTarget = &MeltingTargetBody{
-				TargetSlipMeltingPointC: st.TargetSlipMeltingPointC,
-				SlipMeltingPointC:       st.SlipMeltingPointC,
-				FeedSlipMeltingPointC:   finiteOrNil(st.FeedSlipMeltingPointC),
-				IodineValue:             st.FinalIodineValue,
-			}
-		} else {
-			if body.Melting != nil {
-				return NewError(KindMalformed, "melting options go only with a slip_melting_point_c target",
-					FieldError{Pointer: "/melting", Reason: "only with target slip_melting_point_c"})
-			}
-			if res, err = hardening.Forecast(c.Request().Context(), cat, req); err != nil {
-				return mapErrorPaths(err, forecastPath)
-			}
+		if res.SlipTarget != nil {
+			rec.SolverIterations("slip_melting_point_search", res.SlipTarget.Evaluations)
 		}
 		rec.Calculation("hardening_forecast")
-		warnings := append(toWarnings(feed.Warnings, "profile"), toWarnings(mapWarningPaths(res.Warnings, forecastPath))...)
-		if sn2 != nil {
-			warnings = append(warnings, toWarnings(sn2.Warnings, "sn2_profile")...)
-		}
-		out := fromForecast(res, preset, warnings)
-		out.MeltingTarget = meltingTarget
-		return respond(c, http.StatusOK, out)
+		return respond(c, http.StatusOK, fromForecast(res))
 	}
 }
 
-func profileOut(p *chem.Profile) ProfileOut {
-	out := ProfileOut{Basis: p.Basis.String(), Acids: make([]EntryBody, len(p.Components))}
-	for i, c := range p.Components {
-		out.Acids[i] = EntryBody{Acid: c.Acid.ID, Percent: c.Percent}
-	}
-	return out
-}
-
-func fromForecast(r *hardening.ForecastResult, preset *string, warnings []WarningBody) ForecastResponse {
+func fromForecast(a *hardening.ForecastAnswer) ForecastResponse {
+	r := a.ForecastResult
 	ref, _ := hardening.StandardGasReference(hardening.GasRef0C1atm)
+	var preset *string
+	if a.Preset != "" {
+		preset = &a.Preset
+	}
 	out := ForecastResponse{
 		IodineValue:       r.FinalIodineValue,
 		FeedIodineValue:   r.FeedIodineValue,
-		TransPercent:      r.TransPercent,
-		SaturatedPercent:  r.SaturatedPercent,
+		TransPercent:      round(r.TransPercent, decimalsSum),
+		SaturatedPercent:  round(r.SaturatedPercent, decimalsSum),
 		ProductProfile:    profileOut(r.Product),
 		ProductProperties: fromProperties(r.ProductProperties),
 		Hydrogen: ForecastHydrogen{
@@ -345,8 +203,16 @@ func fromForecast(r *hardening.ForecastResult, preset *string, warnings []Warnin
 			FullyHydrogenatedMaxIodineValue: hardening.FullyHydrogenatedMaxIodineValue,
 		},
 		Catalyst: CatalystUsed{Preset: preset, Parameters: fromCatalyst(r.Catalyst)},
-		Cautions: hardeningCautions,
-		Warnings: warnings,
+		Cautions: hardening.Cautions(),
+		Warnings: toWarnings(a.Warnings),
+	}
+	if st := a.SlipTarget; st != nil {
+		out.MeltingTarget = &MeltingTargetBody{
+			TargetSlipMeltingPointC: st.TargetSlipMeltingPointC,
+			SlipMeltingPointC:       st.SlipMeltingPointC,
+			FeedSlipMeltingPointC:   finiteOrNil(st.FeedSlipMeltingPointC),
+			IodineValue:             st.IodineValue,
+		}
 	}
 	if r.Sn2Product != nil {
 		sn2 := profileOut(r.Sn2Product)

@@ -1,7 +1,6 @@
 package api
 
 import (
-	"fmt"
 	"net/http"
 
 	"github.com/labstack/echo/v4"
@@ -15,7 +14,8 @@ type PropertiesRequest struct {
 	Material string       `json:"material,omitempty"`
 }
 
-// PropertiesResponse is the answer of POST /v1/properties.
+// PropertiesResponse is the answer of POST /v1/properties. Its figures are
+// rounded to their reporting precision (figures.go).
 type PropertiesResponse struct {
 	Material                string           `json:"material"`
 	Basis                   string           `json:"basis"`
@@ -78,32 +78,21 @@ type AcidResultBody struct {
 	AOCSIodineValueContribution *float64 `json:"aocs_iodine_value_contribution"`
 }
 
-var materialNames = map[string]chem.Material{
-	"":                 chem.MaterialTAG,
-	"triacylglycerols": chem.MaterialTAG,
-	"free_fatty_acids": chem.MaterialFreeAcid,
-	"methyl_esters":    chem.MaterialMethylEster,
-}
-
-func toChemMaterial(s string, path ...any) (chem.Material, error) {
-	return enumValue(materialNames, s, Pointer(path...), "must be triacylglycerols, free_fatty_acids or methyl_esters")
+// input copies the request into the science's shape.
+func (r *PropertiesRequest) input() chem.PropertiesInput {
+	return chem.PropertiesInput{Profile: r.Profile.input(), Material: r.Material}
 }
 
 func handleProperties(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		var req PropertiesRequest
-		if err := decodeStrict(c, &req); err != nil {
+		if err := decode(c, &req); err != nil {
 			return err
 		}
-		material, err := toChemMaterial(req.Material, "material")
+		props, err := chem.ComputeProperties(cat, req.input())
 		if err != nil {
 			return err
 		}
-		p, err := toChemProfile(cat, req.Profile, "profile")
-		if err != nil {
-			return err
-		}
-		props := chem.ComputeProperties(p, material)
 		rec.Calculation("properties")
 		return respond(c, http.StatusOK, fromProperties(props))
 	}
@@ -119,37 +108,38 @@ func acidLabel(a *chem.FattyAcid) string {
 }
 
 func fromProperties(p chem.Properties) PropertiesResponse {
+	const v, m, sum, line = decimalsValue, decimalsMolarMass, decimalsSum, decimalsLine
 	out := PropertiesResponse{
 		Material:            p.Material.String(),
 		Basis:               p.Basis.String(),
-		IodineValue:         p.IodineValue,
-		SaponificationValue: p.SaponificationValue,
+		IodineValue:         round(p.IodineValue, v),
+		SaponificationValue: round(p.SaponificationValue, v),
 		MeanMolarMass: MeanMolarMass{
-			AcidGPerMol:            p.MeanAcidMolarMass,
-			MethylEsterGPerMol:     p.MeanMethylEsterMolarMass,
-			TriacylglycerolGPerMol: p.MeanTAGMolarMass,
+			AcidGPerMol:            round(p.MeanAcidMolarMass, m),
+			MethylEsterGPerMol:     round(p.MeanMethylEsterMolarMass, m),
+			TriacylglycerolGPerMol: round(p.MeanTAGMolarMass, m),
 		},
-		MeanDoubleBondsPerChain: p.MeanDoubleBondsPerChain,
-		UnidentifiedPercent:     p.UnidentifiedPercent,
+		MeanDoubleBondsPerChain: round(p.MeanDoubleBondsPerChain, sum),
+		UnidentifiedPercent:     round(p.UnidentifiedPercent, sum),
 		Sums: CompositionSums{
-			SaturatedPercent:               p.Sums.Saturated,
-			MonounsaturatedPercent:         p.Sums.Monounsaturated,
-			PolyunsaturatedPercent:         p.Sums.Polyunsaturated,
-			TransPercent:                   p.Sums.Trans,
-			OtherUnsaturatedPercent:        p.Sums.OtherUnsaturated,
-			N3Percent:                      p.Sums.N3,
-			N6Percent:                      p.Sums.N6,
-			N9Percent:                      p.Sums.N9,
-			N6ToN3Ratio:                    p.Sums.N6ToN3,
-			PolyunsaturatedToSaturatedRate: p.Sums.PToS,
+			SaturatedPercent:               round(p.Sums.Saturated, sum),
+			MonounsaturatedPercent:         round(p.Sums.Monounsaturated, sum),
+			PolyunsaturatedPercent:         round(p.Sums.Polyunsaturated, sum),
+			TransPercent:                   round(p.Sums.Trans, sum),
+			OtherUnsaturatedPercent:        round(p.Sums.OtherUnsaturated, sum),
+			N3Percent:                      round(p.Sums.N3, sum),
+			N6Percent:                      round(p.Sums.N6, sum),
+			N9Percent:                      round(p.Sums.N9, sum),
+			N6ToN3Ratio:                    roundPtr(p.Sums.N6ToN3, sum),
+			PolyunsaturatedToSaturatedRate: roundPtr(p.Sums.PToS, sum),
 		},
 		Indices: IndicesBody{
-			CalculatedOxidizability: p.Indices.Cox,
-			AtherogenicIndex:        p.Indices.Atherogenic,
-			ThrombogenicIndex:       p.Indices.Thrombogenic,
+			CalculatedOxidizability: round(p.Indices.Cox, sum),
+			AtherogenicIndex:        roundPtr(p.Indices.Atherogenic, sum),
+			ThrombogenicIndex:       roundPtr(p.Indices.Thrombogenic, sum),
 		},
 		Acids:    make([]AcidResultBody, len(p.Acids)),
-		Warnings: toWarnings(p.Warnings, "profile"),
+		Warnings: toWarnings(p.Warnings),
 	}
 	out.AOCS = AOCSIodineValue{Applies: p.AOCSApplies}
 	if p.AOCSApplies {
@@ -158,8 +148,8 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 			set = "free_fatty_acid"
 		}
 		out.AOCS.FactorSet = &set
-		out.AOCS.IodineValue = optional(p.IodineValueAOCS)
-		out.AOCS.Note = fmt.Sprintf("AOCS Cd 1c-85 with its %s factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %%)", set)
+		out.AOCS.IodineValue = optional(round(p.IodineValueAOCS, v))
+		out.AOCS.Note = aocsNotes[set]
 	} else {
 		out.AOCS.Note = "AOCS Cd 1c-85 defines no factors for methyl esters; use iodine_value"
 	}
@@ -167,15 +157,21 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		r := AcidResultBody{
 			Acid:                    a.Acid.ID,
 			Label:                   acidLabel(a.Acid),
-			Percent:                 a.Percent,
-			MolePercent:             a.MolePercent,
-			FAMEWeightPercent:       a.FAMEWeightPercent,
-			IodineValueContribution: a.IodineValue,
+			Percent:                 round(a.Percent, line),
+			MolePercent:             round(a.MolePercent, line),
+			FAMEWeightPercent:       round(a.FAMEWeightPercent, line),
+			IodineValueContribution: round(a.IodineValue, v),
 		}
 		if a.CountedByAOCS {
-			r.AOCSIodineValueContribution = optional(a.IodineValueAOCS)
+			r.AOCSIodineValueContribution = optional(round(a.IodineValueAOCS, v))
 		}
 		out.Acids[i] = r
 	}
 	return out
+}
+
+// aocsNotes are the notes of the AOCS Cd 1c-85 figure, by factor set.
+var aocsNotes = map[string]string{
+	"triacylglycerol": "AOCS Cd 1c-85 with its triacylglycerol factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %)",
+	"free_fatty_acid": "AOCS Cd 1c-85 with its free_fatty_acid factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %)",
 }

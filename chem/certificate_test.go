@@ -135,7 +135,7 @@ func TestCheckVectors(t *testing.T) {
 	for _, v := range loadReference(t).Vectors {
 		t.Run(v.Name, func(t *testing.T) {
 			p := vectorProfile(t, cat, v.Acids)
-			got := ComputeProperties(p, MaterialTAG)
+			got := PropertiesOf(p, MaterialTAG)
 			checks := map[string]struct {
 				val, tol float64
 			}{
@@ -173,7 +173,7 @@ func TestCanolaExactMinusAOCSIs24_1(t *testing.T) {
 		}
 	}
 	require.NotNil(t, canola)
-	got := ComputeProperties(vectorProfile(t, cat, canola), MaterialTAG)
+	got := PropertiesOf(vectorProfile(t, cat, canola), MaterialTAG)
 	var c24_1 AcidResult
 	for _, a := range got.Acids {
 		if a.Acid.ID == "24:1 c15" {
@@ -220,11 +220,11 @@ func TestAOCSFactorsAreSimpleTAGIodineValues(t *testing.T) {
 
 func TestAOCSNotForMethylEsters(t *testing.T) {
 	cat := NewCatalogue()
-	got := ComputeProperties(pureProfile(t, cat, "oleic"), MaterialMethylEster)
+	got := PropertiesOf(pureProfile(t, cat, "oleic"), MaterialMethylEster)
 	require.False(t, got.AOCSApplies)
 	require.Zero(t, got.IodineValueAOCS)
 	require.InDelta(t, 85.60, got.IodineValue, tolIodine) // methyl oleate [calc] DOMAIN.md §4
-	got = ComputeProperties(pureProfile(t, cat, "oleic"), MaterialFreeAcid)
+	got = PropertiesOf(pureProfile(t, cat, "oleic"), MaterialFreeAcid)
 	require.InDelta(t, 89.86, got.IodineValueAOCS, 0.01) // 100 × free-acid factor 0.8986 [pub: AOCS Cd 1c-85]
 }
 
@@ -251,7 +251,7 @@ func TestSumsFollowLabellingDefinitions(t *testing.T) {
 		{"18:2 c9,t11", 5}, {"18:2 c9,t12", 5}, {"18:3 n-3", 5},
 	}, 0)
 	require.NoError(t, err)
-	s := ComputeProperties(p, MaterialTAG).Sums
+	s := PropertiesOf(p, MaterialTAG).Sums
 	require.InDelta(t, 20, s.Saturated, 1e-9)
 	require.InDelta(t, 30, s.Monounsaturated, 1e-9)
 	require.InDelta(t, 30, s.Polyunsaturated, 1e-9)
@@ -273,14 +273,14 @@ func TestSumsFollowLabellingDefinitions(t *testing.T) {
 func TestThrombogenicIndex(t *testing.T) {
 	cat := NewCatalogue()
 	p := vectorProfile(t, cat, map[string]float64{"16:0": 10.5, "16:1": 0.1, "18:0": 4.0, "18:1": 23.0, "18:2": 53.7, "18:3": 7.6, "20:0": 0.4, "20:1": 0.3, "22:0": 0.4})
-	ix := ComputeProperties(p, MaterialTAG).Indices
+	ix := PropertiesOf(p, MaterialTAG).Indices
 	require.InDelta(t, 14.5/(0.5*23.4+0.5*53.7+3*7.6+7.6/53.7), *ix.Thrombogenic, 1e-9)
 	require.InDelta(t, 0.2358, *ix.Thrombogenic, tolIndex)
 }
 
 func TestIndicesUndefinedForSaturatedFat(t *testing.T) {
 	cat := NewCatalogue()
-	got := ComputeProperties(pureProfile(t, cat, "stearic"), MaterialTAG)
+	got := PropertiesOf(pureProfile(t, cat, "stearic"), MaterialTAG)
 	require.Nil(t, got.Indices.Atherogenic)
 	require.Nil(t, got.Indices.Thrombogenic)
 	require.Nil(t, got.Sums.N6ToN3)
@@ -300,7 +300,7 @@ func TestThrombogenicTermWarnsOnlyWhenDropped(t *testing.T) {
 	cat := NewCatalogue()
 	count := func(m map[string]float64) int {
 		n := 0
-		for _, w := range ComputeProperties(vectorProfile(t, cat, m), MaterialTAG).Warnings {
+		for _, w := range PropertiesOf(vectorProfile(t, cat, m), MaterialTAG).Warnings {
 			if w.Code == WarnUndefinedIndex {
 				n++
 			}
@@ -341,6 +341,6 @@ func BenchmarkProperties(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		_ = ComputeProperties(p, MaterialTAG)
+		_ = PropertiesOf(p, MaterialTAG)
 	}
 }

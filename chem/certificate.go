@@ -165,8 +165,51 @@ func SaponificationValue(p *Profile, m Material) float64 {
 	return 1000 * MolarMassKOH / materialMassPerChain(p, m)
 }
 
-// ComputeProperties calculates the certificate values for a profile.
-func ComputeProperties(p *Profile, m Material) Properties {
+// ParseMaterial reads a material by its contract name; "" is the default,
+// MaterialTAG.
+func ParseMaterial(s string) (Material, bool) {
+	switch s {
+	case "", "triacylglycerols":
+		return MaterialTAG, true
+	case "free_fatty_acids":
+		return MaterialFreeAcid, true
+	case "methyl_esters":
+		return MaterialMethylEster, true
+	}
+	return 0, false
+}
+
+// PropertiesInput is a request for the certificate values of one profile,
+// in the request's shape. Paths in errors and warnings: "profile", …
+// (see [ProfileInput]) and "material".
+type PropertiesInput struct {
+	// Profile is the sample's fatty-acid profile; required.
+	Profile *ProfileInput
+	// Material names the chemical form of the sample: "triacylglycerols"
+	// (also ""), "free_fatty_acids" or "methyl_esters". See [Material].
+	Material string
+}
+
+// ComputeProperties reads the profile of in and calculates its certificate
+// values. Errors are *Error values whose paths point into in: KindMalformed
+// for a missing profile or an unknown material or basis, KindInvalid for a
+// profile that breaks a rule of [NewProfile].
+func ComputeProperties(cat *Catalogue, in PropertiesInput) (Properties, error) {
+	m, ok := ParseMaterial(in.Material)
+	if !ok {
+		return Properties{}, Errorf(KindMalformed, "unknown material").
+			WithField("must be triacylglycerols, free_fatty_acids or methyl_esters", "material")
+	}
+	p, err := cat.ReadProfileAt(in.Profile, "profile")
+	if err != nil {
+		return Properties{}, err
+	}
+	return PropertiesOf(p, m), nil
+}
+
+// PropertiesOf calculates the certificate values of a profile already read.
+// Its warnings are the profile's (with their paths) and the calculation's.
+func PropertiesOf(p *Profile, m Material) Properties {
 	out := Properties{
 		Material:                m,
 		Basis:                   p.Basis,

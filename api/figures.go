@@ -1,0 +1,50 @@
+package api
+
+import "math"
+
+// Reporting precision of the certificate figures, in decimals. A
+// certificate and a LIMS field hold a figure to the precision its method
+// prints, not seventeen significant digits; fewer digits are also less to
+// encode and send. The figures are rounded half away from zero.
+//
+//   - Iodine and saponification values, and their per-acid contributions:
+//     0.01 (the calculated-value methods AOCS Cd 1c-85 and AOCS Cd 3a-94
+//     print two decimals).
+//   - Mean molar masses: 0.001 g/mol, the precision the atomic weights
+//     they are computed from carry.
+//   - Composition sums, ratios, the mean number of double bonds and the
+//     indices: 0.01.
+//   - A profile's own lines (percent, mole percent, FAME weight percent):
+//     1e-7 percentage points, which is full precision for any laboratory
+//     figure and lets a client recombine pools or convert bases exactly.
+const (
+	decimalsValue     = 2
+	decimalsMolarMass = 3
+	decimalsSum       = 2
+	decimalsLine      = 7
+)
+
+var pow10 = [...]float64{1, 10, 100, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8}
+
+// round rounds v to d decimals; non-finite values pass unchanged (the
+// encoder refuses them).
+func round(v float64, d int) float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
+	}
+	p := pow10[d]
+	r := math.Round(v*p) / p
+	if r == 0 {
+		return 0 // never "-0"
+	}
+	return r
+}
+
+// roundPtr rounds an optional figure.
+func roundPtr(v *float64, d int) *float64 {
+	if v == nil {
+		return nil
+	}
+	r := round(*v, d)
+	return &r
+}
