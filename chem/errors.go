@@ -134,7 +134,9 @@ func (e *FieldErrors) Malformed(reason string, path ...any) { e.Add(KindMalforme
 func (e *FieldErrors) Invalid(reason string, path ...any) { e.Add(KindInvalid, reason, path...) }
 
 // OutOfDomain records a problem of kind KindOutOfDomain.
-func (e *FieldErrors) OutOfDomain(reason string, path ...any) { e.Add(KindOutOfDomain, reason, path...) }
+func (e *FieldErrors) OutOfDomain(reason string, path ...any) {
+	e.Add(KindOutOfDomain, reason, path...)
+}
 
 // Len is the number of problems recorded.
 func (e *FieldErrors) Len() int { return len(e.fields) }

@@ -182,4 +182,3 @@ func (c Catalyst) validateInto(errs *chem.FieldErrors, prefix ...any) {
 		}
 	}
 }
-
