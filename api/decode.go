@@ -1,7 +1,6 @@
 package api
 
 import (
-	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -9,9 +8,12 @@ import (
 	"math"
 	"net/http"
 	"reflect"
+	"strconv"
 	"strings"
+	"sync"
 
 	"github.com/labstack/echo/v4"
+	segjson "github.com/segmentio/encoding/json"
 )
 
 // ContextKeyBody is where the body-reading middleware leaves the request
@@ -64,16 +66,11 @@ func decode(c echo.Context, v any) error {
 	if err != nil {
 		return err
 	}
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(v); err != nil {
+	rest, err := segjson.Parse(body, v, segjson.DisallowUnknownFields)
+	if err != nil {
 		return jsonError(err)
 	}
-	if dec.More() {
-		return NewError(KindMalformed, "the request body has data after the JSON value", FieldError{Pointer: "", Reason: "trailing data after the JSON value"})
-	}
-	var extra json.RawMessage
-	if err := dec.Decode(&extra); err != io.EOF {
+	if len(rest) > 0 {
 		return NewError(KindMalformed, "the request body has data after the JSON value", FieldError{Pointer: "", Reason: "trailing data after the JSON value"})
 	}
 	return nil
@@ -105,14 +102,34 @@ func jsonError(err error) *Error {
 
 // respond writes a JSON success body. Encoding fails on NaN or ±Inf, which
 // the error handler then answers as an internal error, so a non-finite
-// number never reaches a client.
+// number never reaches a client. The body is encoded into a pooled buffer
+// and sent with its length declared, in one piece.
 func respond(c echo.Context, status int, v any) error {
-	body, err := json.Marshal(v)
+	bp := responseBuffers.Get().(*[]byte)
+	defer func() {
+		if cap(*bp) <= maxPooledResponse {
+			responseBuffers.Put(bp)
+		}
+	}()
+	body, err := segjson.Append((*bp)[:0], v, segjson.SortMapKeys)
 	if err != nil {
 		return fmt.Errorf("encoding response: %w", err)
 	}
-	return c.JSONBlob(status, body)
+	*bp = body
+	h := c.Response().Header()
+	h.Set(echo.HeaderContentType, echo.MIMEApplicationJSON)
+	h.Set(echo.HeaderContentLength, strconv.Itoa(len(body)))
+	c.Response().WriteHeader(status)
+	_, err = c.Response().Write(body)
+	return err
 }
+
+// responseBuffers recycles encoding buffers; one larger than
+// maxPooledResponse (a long path table, a big batch) is left to the
+// collector rather than kept.
+var responseBuffers = sync.Pool{New: func() any { b := make([]byte, 0, 8<<10); return &b }}
+
+const maxPooledResponse = 256 << 10
 
 // Integer is a request integer. JSON Schema's "integer" (and so the
 // contract's validator) accepts a whole number in any JSON spelling — 3,

@@ -323,12 +323,14 @@ type duplicateError struct{ pointer string }
 func (e *duplicateError) Error() string { return "duplicate member at " + e.pointer }
 
 // exactDuplicate is the exact check: a walk over encoding/json's tokens
-// with a set of decoded keys per object.
+// with a set of decoded keys per object. The path is one stack shared by
+// the walk, so deep nesting costs linear time.
 func exactDuplicate(body []byte) (string, bool) {
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.UseNumber()
-	var walk func(path []any) error
-	walk = func(path []any) error {
+	var path []any
+	var walk func() error
+	walk = func() error {
 		tok, err := dec.Token()
 		if err != nil {
 			return errWalkStop
@@ -342,23 +344,26 @@ func exactDuplicate(body []byte) (string, bool) {
 					return errWalkStop
 				}
 				key, _ := kt.(string)
-				p := append(append([]any{}, path...), key)
+				path = append(path, key)
 				if seen[key] {
-					return &duplicateError{Pointer(p...)}
+					return &duplicateError{Pointer(path...)}
 				}
 				seen[key] = true
-				if err := walk(p); err != nil {
+				if err := walk(); err != nil {
 					return err
 				}
+				path = path[:len(path)-1]
 			}
 			if _, err := dec.Token(); err != nil {
 				return errWalkStop
 			}
 		case json.Delim('['):
 			for i := 0; dec.More(); i++ {
-				if err := walk(append(append([]any{}, path...), i)); err != nil {
+				path = append(path, i)
+				if err := walk(); err != nil {
 					return err
 				}
+				path = path[:len(path)-1]
 			}
 			if _, err := dec.Token(); err != nil {
 				return errWalkStop
@@ -367,7 +372,7 @@ func exactDuplicate(body []byte) (string, bool) {
 		return nil
 	}
 	var d *duplicateError
-	if errors.As(walk(nil), &d) {
+	if errors.As(walk(), &d) {
 		return d.pointer, true
 	}
 	return "", false

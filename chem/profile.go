@@ -168,7 +168,24 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 	}
 	p := &Profile{Basis: basis, Components: make([]Component, 0, len(entries))}
 	var bad FieldErrors
-	index := make(map[*FattyAcid]int, len(entries))
+	// Where each acid sits among the components: a linear search for the
+	// usual few dozen lines (cheaper than a map), a map for long lists.
+	var index map[*FattyAcid]int
+	if len(entries) > 32 {
+		index = make(map[*FattyAcid]int, len(entries))
+	}
+	find := func(a *FattyAcid) (int, bool) {
+		if index != nil {
+			j, ok := index[a]
+			return j, ok
+		}
+		for j := range p.Components {
+			if p.Components[j].Acid == a {
+				return j, true
+			}
+		}
+		return 0, false
+	}
 	var unidentified float64
 	for i, e := range entries {
 		// One entry may exceed 100 by the sum tolerance: a pure standard
@@ -196,14 +213,16 @@ func NewProfile(cat *Catalogue, basis Basis, entries []Entry, tol float64) (*Pro
 		if r.Assumption != "" {
 			p.Warnings = append(p.Warnings, Warning{WarnAssumedIsomer, r.Assumption, []any{"acids", i, "acid"}})
 		}
-		if j, seen := index[r.Acid]; seen {
+		if j, seen := find(r.Acid); seen {
 			p.Components[j].Percent += e.Percent
 			p.Warnings = append(p.Warnings, Warning{WarnDuplicateAcid,
 				fmt.Sprintf("%s appears more than once (label %q); the entries were summed", r.Acid.ID, e.Acid),
 				[]any{"acids", i, "acid"}})
 			continue
 		}
-		index[r.Acid] = len(p.Components)
+		if index != nil {
+			index[r.Acid] = len(p.Components)
+		}
 		p.Components = append(p.Components, Component{Acid: r.Acid, Percent: e.Percent})
 	}
 	if err := bad.Err(""); err != nil {

@@ -8,12 +8,9 @@ import (
 	"io"
 	"mime"
 	"net/http"
-	"regexp"
-	"sort"
 	"strings"
 
 	"github.com/getkin/kin-openapi/openapi3"
-	"github.com/getkin/kin-openapi/openapi3filter"
 	"github.com/getkin/kin-openapi/routers"
 	"github.com/labstack/echo/v4"
 
@@ -30,6 +27,9 @@ func LoadSpec(ctx context.Context, raw []byte) (*openapi3.T, error) {
 	}
 	if err := doc.Validate(ctx); err != nil {
 		return nil, fmt.Errorf("validating openapi.yaml: %w", err)
+	}
+	if _, err := compileBodies(doc); err != nil {
+		return nil, fmt.Errorf("compiling the request schemas of openapi.yaml: %w", err)
 	}
 	return doc, nil
 }
@@ -60,56 +60,88 @@ func operationRoutes(doc *openapi3.T) map[string]*routers.Route {
 	return out
 }
 
-// validateRequests checks each request against the operation echo routed it
-// to: media type, then body and parameters against the schema. Routing is
-// echo's, so no servers: host matching gets in the way behind an ingress.
-func validateRequests(doc *openapi3.T) echo.MiddlewareFunc {
-	opts := &openapi3filter.Options{
-		MultiError:          true,
-		SkipSettingDefaults: true,
-		AuthenticationFunc:  openapi3filter.NoopAuthenticationFunc,
+// readBodies is the one place a request body is read. For each documented
+// operation with a body it checks the media type, reads the body once
+// (after the size limit, which bodyLimit set), refuses an empty body and a
+// member named twice in one object, validates the bytes against the
+// operation's compiled schema, and leaves them in the context for the
+// handler, which decodes them once. Routing is echo's, so no servers: host
+// matching gets in the way behind an ingress; undocumented routes pass to
+// routing, which answers 404 or 405.
+func readBodies(doc *openapi3.T) echo.MiddlewareFunc {
+	schemas, err := compileBodies(doc)
+	if err != nil {
+		// LoadSpec compiled the same document without error.
+		panic("service: the contract's request schemas do not compile: " + err.Error())
 	}
-	routes := operationRoutes(doc)
 	return func(next echo.HandlerFunc) echo.HandlerFunc {
 		return func(c echo.Context) error {
 			req := c.Request()
-			route := routes[req.Method+" "+c.Path()]
-			if route == nil {
-				return next(c) // undocumented: routing answers 404 or 405
+			schema := schemas[req.Method+" "+c.Path()]
+			if schema == nil {
+				return next(c)
 			}
-			var body []byte
-			if route.Operation.RequestBody != nil {
-				if err := checkMediaType(req); err != nil {
+			if err := checkMediaType(req); err != nil {
+				return err
+			}
+			body, err := readBody(req)
+			if err != nil {
+				return err
+			}
+			if len(bytes.TrimSpace(body)) == 0 {
+				return api.NewError(api.KindMalformed, "the request body is empty", api.FieldError{Pointer: "", Reason: "a JSON object is required"})
+			}
+			violations, unchecked, err := validateBody(schema, body)
+			if err != nil {
+				return api.NewError(api.KindMalformed, "the request body is not valid JSON",
+					api.FieldError{Pointer: "", Reason: "the body is not valid JSON: " + err.Error()})
+			}
+			if unchecked {
+				// Objects the schema does not name the fields of: the
+				// scan finds duplicates there.
+				if err := api.CheckDuplicateMembers(body); err != nil {
 					return err
 				}
-				var err error
-				body, err = io.ReadAll(req.Body)
-				if err != nil {
-					var mbe *http.MaxBytesError
-					if errors.As(err, &mbe) {
-						return err // the error handler answers 413
-					}
-					return api.NewError(api.KindMalformed, "the request body could not be read")
-				}
-				req.Body = io.NopCloser(bytes.NewReader(body))
-				if len(bytes.TrimSpace(body)) == 0 {
-					return api.NewError(api.KindMalformed, "the request body is empty", api.FieldError{Pointer: "", Reason: "a JSON object is required"})
-				}
 			}
-			input := &openapi3filter.RequestValidationInput{
-				Request: req,
-				Route:   route,
-				Options: opts,
+			if len(violations) > 0 {
+				return contractError(violations)
 			}
-			if err := openapi3filter.ValidateRequest(req.Context(), input); err != nil {
-				return contractError(err)
-			}
-			if body != nil {
-				req.Body = io.NopCloser(bytes.NewReader(body))
-			}
+			c.Set(api.ContextKeyBody, body)
 			return next(c)
 		}
 	}
+}
+
+// readBody reads the whole body, in one allocation when its length is
+// declared. An over-long body (http.MaxBytesReader) is handed to the error
+// handler, which answers 413.
+func readBody(req *http.Request) ([]byte, error) {
+	var body []byte
+	var err error
+	if n := req.ContentLength; n > 0 {
+		body = make([]byte, n)
+		_, err = io.ReadFull(req.Body, body)
+		if err == nil {
+			// A body longer than declared is a framing error net/http
+			// already refuses; read to EOF to surface a limit error.
+			var one [1]byte
+			if k, rerr := req.Body.Read(one[:]); k > 0 {
+				err = errors.New("body longer than its Content-Length")
+			} else if rerr != nil && rerr != io.EOF {
+				err = rerr
+			}
+		}
+	} else {
+		body, err = io.ReadAll(req.Body)
+	}
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			return nil, err
+		}
+		return nil, api.NewError(api.KindMalformed, "the request body could not be read")
+	}
+	return body, nil
 }
 
 // checkMediaType accepts application/json (any charset parameter) with no
@@ -128,13 +160,10 @@ func checkMediaType(req *http.Request) error {
 	return nil
 }
 
-// contractError turns kin-openapi's validation errors into one malformed-
-// request error with a JSON pointer per failure; the schema's own text is
-// never echoed.
-func contractError(err error) error {
-	var fields []api.FieldError
-	collectFieldErrors(err, &fields)
-	sort.SliceStable(fields, func(i, j int) bool { return fields[i].Pointer < fields[j].Pointer })
+// contractError turns the violations of the contract into one malformed-
+// request error with a JSON pointer per violation; the schema's own text
+// is never echoed.
+func contractError(fields []api.FieldError) error {
 	fields = dedupe(fields)
 	detail := "the request does not match the contract"
 	if len(fields) == 1 {
@@ -152,62 +181,6 @@ func dedupe(in []api.FieldError) []api.FieldError {
 			seen[k] = true
 			out = append(out, f)
 		}
-	}
-	return out
-}
-
-func collectFieldErrors(err error, out *[]api.FieldError) {
-	var multi openapi3.MultiError
-	if errors.As(err, &multi) {
-		for _, e := range multi {
-			collectFieldErrors(e, out)
-		}
-		return
-	}
-	var reqErr *openapi3filter.RequestError
-	if errors.As(err, &reqErr) && reqErr.Err != nil {
-		var parseErr *openapi3filter.ParseError
-		if errors.As(reqErr.Err, &parseErr) {
-			*out = append(*out, api.FieldError{Pointer: "", Reason: "the body is not valid JSON: " + rootCause(parseErr)})
-			return
-		}
-		if reqErr.Parameter != nil {
-			*out = append(*out, api.FieldError{Pointer: "", Reason: fmt.Sprintf("parameter %q: %s", reqErr.Parameter.Name, reqErr.Reason)})
-			return
-		}
-		collectFieldErrors(reqErr.Err, out)
-		return
-	}
-	var schemaErr *openapi3.SchemaError
-	if errors.As(err, &schemaErr) {
-		path := toAny(schemaErr.JSONPointer())
-		// An unknown property is reported at its parent; point at the
-		// property itself.
-		if m := unsupportedRe.FindStringSubmatch(schemaErr.Reason); m != nil {
-			path = append(path, m[1])
-		}
-		*out = append(*out, api.FieldError{Pointer: api.Pointer(path...), Reason: schemaErr.Reason})
-		return
-	}
-	*out = append(*out, api.FieldError{Pointer: "", Reason: "the request does not match the contract"})
-}
-
-var unsupportedRe = regexp.MustCompile(`^property "(.+)" is unsupported$`)
-
-func rootCause(err error) string {
-	for {
-		u := errors.Unwrap(err)
-		if u == nil {
-			return err.Error()
-		}
-		err = u
-	}
-}
-
-func toAny(ss []string) []any {
-	out := make([]any, len(ss))
-	for i, s := range ss {
-		out[i] = s
 	}
 	return out
 }

@@ -45,7 +45,7 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		recoverPanics(logger),
 		requestTimeout(cfg.RequestTimeout),
 		bodyLimit(cfg.BodyLimitBytes),
-		validateRequests(doc),
+		readBodies(doc),
 	)
 	api.Routes(e, api.Deps{
 		Catalogue: chem.NewCatalogue(),
@@ -73,7 +73,9 @@ func Run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	if err != nil {
 		return fmt.Errorf("configuration: %w", err)
 	}
-	logger := NewLogger(stdout, cfg.LogLevel)
+	logOut := newBufferedWriter(stdout)
+	defer logOut.Close()
+	logger := NewLogger(logOut, cfg.LogLevel)
 	doc, err := LoadSpec(ctx, spec)
 	if err != nil {
 		return err
