@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/internal/roots"
 )
 
 // Path sizes accepted by [Forecast].
@@ -217,8 +218,9 @@ func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
 // starting from start. On success tr.x holds the composition at the root. The caller guarantees IV(lo) > target and, unless
 // hi is +Inf, IV(hi) < target.
 //
-// Method: Newton's method safeguarded by bisection in a bracket (the
-// "rtsafe" scheme, Press et al., Numerical Recipes, 3rd ed., §9.4). The
+// Method: the shared bracketed root finder (chem/internal/roots), which
+// here takes Newton steps safeguarded by bisection (the "rtsafe" scheme,
+// Press et al., Numerical Recipes, 3rd ed., §9.4). The
 // iodine value falls strictly along the path (every hydrogenation step
 // removes a double bond and adds mass, isomerisation changes neither) and
 // tends to zero, so the root is unique; its derivative is exact and cheap
@@ -229,40 +231,25 @@ func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
 // no upper end is known yet. The iteration cap ends a solve that does not
 // converge with chem.KindNoConvergence.
 func (tr *trajectory) solve(ctx context.Context, target, lo, hi, start float64) (float64, error) {
-	t := start
-	for i := 0; i < rootIterations; i++ {
-		if err := ctx.Err(); err != nil {
-			return 0, err
-		}
-		iv, slope := tr.ivAt(t)
-		f := iv - target
-		if math.Abs(f) <= ivTolerance {
-			return t, nil
-		}
-		if f > 0 {
-			lo = t
-		} else {
-			hi = t
-		}
-		next := t - f/slope
-		if !(slope < 0) || !(next > lo) || !(next < hi) {
-			if math.IsInf(hi, 1) {
-				next = 2 * math.Max(t, 0.5)
-			} else {
-				next = lo + (hi-lo)/2
-			}
-		}
-		if next == t {
-			// The bracket has shrunk to adjacent numbers: near steep corners
-			// of the parameter space the iodine value can step by more than
-			// ivTolerance between neighbouring τ. Accept the point when it is
-			// still far inside the 0.01 the target promises.
-			if math.Abs(f) <= ivAcceptTolerance {
-				return t, nil
-			}
-			break
-		}
-		t = next
+	r, err := roots.Find(roots.Problem{
+		F: func(tau float64) (float64, float64, error) {
+			iv, slope := tr.ivAt(tau)
+			return iv - target, slope, nil
+		},
+		Lo: lo, Hi: hi, FLo: math.NaN(), FHi: math.NaN(), Start: start, Step: 1,
+		FTol: ivTolerance, MaxIter: rootIterations, Check: ctx.Err,
+	})
+	switch {
+	case err != nil:
+		return 0, err
+	case r.Converged:
+		return r.X, nil
+	case r.Stalled && math.Abs(r.F) <= ivAcceptTolerance:
+		// The bracket has shrunk to adjacent numbers: near steep corners
+		// of the parameter space the iodine value can step by more than
+		// ivTolerance between neighbouring τ. Accept the point when it is
+		// still far inside the 0.01 the target promises.
+		return r.X, nil
 	}
 	return 0, chem.Errorf(chem.KindNoConvergence,
 		"the root finder did not reach iodine value %.6g within %d iterations", target, rootIterations).

@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/internal/roots"
 	"lipidsvc/chem/melting"
 )
 
@@ -14,7 +15,7 @@ const (
 	// slipToleranceK is how closely the product's slip melting point meets
 	// the target, K.
 	slipToleranceK = 0.01
-	// slipIterations caps the bisection on the iodine value.
+	// slipIterations caps the search on the iodine value.
 	slipIterations = 80
 	// lowestSearchIodineValue is the most the search hardens: near full
 	// saturation, where the slip melting point is at its highest.
@@ -144,38 +145,39 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 			lowestSearchIodineValue, hardest, targetC).
 			WithField("above the reach of this feed and catalyst", "target", "slip_melting_point_c")
 	}
-	// Invariant: slip(hi IV) < target ≤ slip(lo IV).
-	lo, hi := lowestSearchIodineValue, feedIV
-	for i := 0; i < slipIterations; i++ {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-		mid := (lo + hi) / 2
-		_, s, _, err := at(mid, MinPathPoints)
+	// The slip melting point falls as the iodine value rises: slip(hi IV) <
+	// target ≤ slip(lo IV). Pooling of minor species can make it step
+	// slightly rather than vary smoothly; the search brackets a step too.
+	fFeed := feedSlip - targetC
+	if math.IsInf(fFeed, -1) {
+		fFeed = math.NaN() // no slip point at the feed: no value to interpolate with
+	}
+	r, err := roots.Find(roots.Problem{
+		F: func(iv float64) (float64, float64, error) {
+			_, s, _, err := at(iv, MinPathPoints)
+			return s - targetC, math.NaN(), err
+		},
+		Lo: lowestSearchIodineValue, Hi: feedIV, FLo: hardest - targetC, FHi: fFeed, Start: math.NaN(),
+		FTol: slipToleranceK, XTol: 1e-9, MaxIter: slipIterations, Check: ctx.Err,
+	})
+	if err != nil {
+		return nil, err
+	}
+	if r.Converged || r.Stalled {
+		final, fs, warnings, err := at(r.X, req.PathPoints)
 		if err != nil {
 			return nil, err
 		}
-		if math.Abs(s-targetC) <= slipToleranceK || hi-lo < 1e-9 {
-			final, fs, warnings, err := at(mid, req.PathPoints)
-			if err != nil {
-				return nil, err
-			}
-			out.ForecastResult, out.SlipMeltingPointC, out.MeltingWarnings = final, fs, warnings
-			if math.Abs(fs-targetC) > slipToleranceK {
-				// The slip melting point steps across the target between
-				// neighbouring iodine values (pooling of minor species):
-				// the nearest reachable product is reported, with a warning.
-				final.Warnings = append(final.Warnings, chem.Warning{Code: chem.WarnMethodScope, Message: fmt.Sprintf(
-					"the slip melting point steps across the target between adjacent iodine values; "+
-						"the nearest product melts at %.2f °C", fs), Path: []any{"target", "slip_melting_point_c"}})
-			}
-			return out, nil
+		out.ForecastResult, out.SlipMeltingPointC, out.MeltingWarnings = final, fs, warnings
+		if math.Abs(fs-targetC) > slipToleranceK {
+			// The slip melting point steps across the target between
+			// neighbouring iodine values (pooling of minor species):
+			// the nearest reachable product is reported, with a warning.
+			final.Warnings = append(final.Warnings, chem.Warning{Code: chem.WarnMethodScope, Message: fmt.Sprintf(
+				"the slip melting point steps across the target between adjacent iodine values; "+
+					"the nearest product melts at %.2f °C", fs), Path: []any{"target", "slip_melting_point_c"}})
 		}
-		if s >= targetC {
-			lo = mid
-		} else {
-			hi = mid
-		}
+		return out, nil
 	}
 	return nil, chem.Errorf(chem.KindNoConvergence,
 		"the slip melting point target was not reached within %d iterations", slipIterations).

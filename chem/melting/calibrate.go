@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/internal/roots"
 )
 
 // Measurements are a fat's measured melting data for [Calibrate].
@@ -256,22 +257,23 @@ func (c *calibrator) fitShiftToSlip(thr float64) (float64, error) {
 	if target >= fhi {
 		return hi, nil
 	}
-	for hi-lo > 1e-6 {
-		if err := c.ctx.Err(); err != nil {
-			return 0, err
-		}
-		mid := 0.5 * (lo + hi)
-		v, _, err := c.slip(mid, thr)
-		if err != nil {
-			return 0, err
-		}
-		if v < target {
-			lo = mid
-		} else {
-			hi = mid
-		}
+	// The slip melting point rises with the shift; it may step where
+	// pooled species cross the threshold, which the search brackets too.
+	r, err := roots.Find(roots.Problem{
+		F: func(s float64) (float64, float64, error) {
+			v, _, err := c.slip(s, thr)
+			return v - target, math.NaN(), err
+		},
+		Lo: lo, Hi: hi, FLo: flo - target, FHi: fhi - target, Increasing: true, Start: math.NaN(),
+		XTol: 1e-6, MaxIter: 200, Check: c.ctx.Err,
+	})
+	if err != nil {
+		return 0, err
 	}
-	return 0.5 * (lo + hi), nil
+	if r.F == 0 {
+		return r.X, nil
+	}
+	return 0.5 * (r.Lo + r.Hi), nil
 }
 
 // errors evaluates the model with calibration cal against the measurements.

@@ -4,6 +4,7 @@ import (
 	"math"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/internal/roots"
 )
 
 // Solid-solution families (the SolidSolutionFamilies model).
@@ -160,7 +161,6 @@ func (m *Mixture) sfcFamilies(tK, shiftK float64, maxIter int, w *workspace) (fl
 	}
 
 	// Outer safeguarded Newton on F(L) = ψ(L) − L, F > 0 below the root.
-	lo, hi := 0.0, 1.0
 	// Warm start: the liquid fraction of the last solution, extrapolated
 	// linearly in T from the last two when they are close.
 	L := w.liquid
@@ -175,42 +175,26 @@ func (m *Mixture) sfcFamilies(tK, shiftK float64, maxIter int, w *workspace) (fl
 			return m.familySFC(L, tK, w), nil
 		}
 	}
-	// Fallback: the nested, bracketed iteration, from scratch.
+	// Fallback: the nested, bracketed iteration, from scratch: F(L) =
+	// ψ(L) − L falls through zero on (0, 1), with dF/dL = ψ′ − 1.
 	for _, f := range w.act {
 		w.t[f] = 0
 	}
-	L = 0.5
-	converged := false
-	for it := 0; it < maxIter; it++ {
-		psi, dpsi, err := m.familyBalance(L, zFree, maxIter, w)
-		if err != nil {
-			return 0, err
-		}
-		F := psi - L
-		if F == 0 {
-			converged = true
-			break
-		}
-		if F > 0 {
-			lo = L
-		} else {
-			hi = L
-		}
-		next := L - F/(dpsi-1)
-		if !(next > lo && next < hi) || math.IsNaN(next) {
-			next = 0.5 * (lo + hi)
-		}
-		if math.Abs(next-L) <= 1e-13*L || hi-lo <= 1e-15 {
-			L = next
-			converged = true
-			break
-		}
-		L = next
+	r, err := roots.Find(roots.Problem{
+		F: func(L float64) (float64, float64, error) {
+			psi, dpsi, err := m.familyBalance(L, zFree, maxIter, w)
+			return psi - L, dpsi - 1, err
+		},
+		Lo: 0, Hi: 1, FLo: math.NaN(), FHi: math.NaN(), Start: 0.5, XTol: 1e-15, RelTol: 1e-13, MaxIter: maxIter,
+	})
+	if err != nil {
+		return 0, err
 	}
-	if !converged {
+	if !r.Converged && !r.Stalled {
 		return 0, chem.Errorf(chem.KindNoConvergence,
 			"the solid-solution-families equilibrium did not converge in %d iterations", maxIter)
 	}
+	L = r.X
 	if _, _, err := m.familyBalance(L, zFree, maxIter, w); err != nil {
 		return 0, err
 	}
@@ -368,50 +352,30 @@ func (m *Mixture) familyBalance(L, zFree float64, maxIter int, w *workspace) (ps
 			dpsi += 1 / k[lo]
 			continue
 		}
-		// Newton on G(t) = 1/φ(t) − 1/L, concave and increasing in t.
-		t := w.t[f]
-		tlo, thi := 0.0, math.Inf(1)
-		var ps, dps, dphi float64
-		done := false
-		for it := 0; it < maxIter; it++ {
-			var phi float64
-			ps, dps, dphi = 0, 0, 0
-			for i := lo; i < hi; i++ {
-				d := 1 / (1 + t*k[i])
-				zk := m.z[i] * k[i] * d
-				phi += zk
-				ps += m.z[i] * d
-				dps += zk * d         // −dψ_f/dt
-				dphi += zk * k[i] * d // −dφ_f/dt
-			}
-			g := 1/phi - 1/L
-			if g < 0 {
-				tlo = t
-			} else {
-				thi = t
-			}
-			if g == 0 {
-				done = true
-				break
-			}
-			next := t - g*phi*phi/dphi
-			if !(next > tlo && next < thi) || math.IsNaN(next) {
-				if math.IsInf(thi, 1) {
-					next = 2*tlo + 1e-300
-				} else {
-					next = 0.5 * (tlo + thi)
+		// Newton on G(t) = 1/φ(t) − 1/L, concave and increasing in t from
+		// G(0) < 0 (the family is unstable as absent), dG/dt = φ′/φ².
+		var t, ps, dps, dphi float64
+		r, err := roots.Find(roots.Problem{
+			F: func(x float64) (float64, float64, error) {
+				var phi float64
+				t, ps, dps, dphi = x, 0, 0, 0
+				for i := lo; i < hi; i++ {
+					d := 1 / (1 + x*k[i])
+					zk := m.z[i] * k[i] * d
+					phi += zk
+					ps += m.z[i] * d
+					dps += zk * d         // −dψ_f/dt
+					dphi += zk * k[i] * d // −dφ_f/dt
 				}
-			}
-			// A Newton step this small leaves t (and the sums at t) within
-			// about 1e-13 of the root; keep them rather than pay one more
-			// pass.
-			if math.Abs(next-t) <= 1e-13*t || (!math.IsInf(thi, 1) && thi-tlo <= 1e-15*thi) {
-				done = true
-				break
-			}
-			t = next
-		}
-		if !done {
+				return 1/phi - 1/L, dphi / (phi * phi), nil
+			},
+			// A step this small leaves t (and the sums at t) within about
+			// 1e-13 of the root; they are kept rather than paid for with
+			// one more pass.
+			Lo: 0, Hi: math.Inf(1), FLo: math.NaN(), FHi: math.NaN(), Increasing: true,
+			Start: w.t[f], Step: 1e-300, RelTol: 1e-13, MaxIter: maxIter,
+		})
+		if err != nil || !(r.Converged || r.Stalled) {
 			return 0, 0, chem.Errorf(chem.KindNoConvergence,
 				"the solid-solution-families equilibrium did not converge in %d iterations", maxIter)
 		}

@@ -6,6 +6,7 @@ import (
 	"slices"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/internal/roots"
 )
 
 // SolidModel is the model of the solid phase in the solid–liquid
@@ -403,38 +404,27 @@ func (m *Mixture) sfcSolidSolution(tK, shiftK float64, maxIter int, w *workspace
 	}
 	beta := 1.0
 	if g1 < 0 {
-		lo, hi := 0.0, 1.0
-		beta = 0.5
-		converged := false
-		for it := 0; it < maxIter; it++ {
-			var g, dg float64
-			for i, z := range m.z {
-				d := k[i] - 1
-				den := 1 + beta*d
-				q := z * d / den
-				g += q
-				dg -= q * d / den
-			}
-			if g > 0 {
-				lo = beta
-			} else {
-				hi = beta
-			}
-			next := beta - g/dg
-			if !(next > lo && next < hi) || math.IsNaN(next) {
-				next = 0.5 * (lo + hi)
-			}
-			if math.Abs(next-beta) < 1e-15 || hi-lo < 1e-15 {
-				beta = next
-				converged = true
-				break
-			}
-			beta = next
-		}
-		if !converged {
+		// g(β) = Σ z_i(K_i − 1)/(1 + β(K_i − 1)) falls from g0 > 0 to
+		// g1 < 0 on [0, 1]; its derivative is exact and cheap.
+		r, err := roots.Find(roots.Problem{
+			F: func(beta float64) (float64, float64, error) {
+				var g, dg float64
+				for i, z := range m.z {
+					d := k[i] - 1
+					den := 1 + beta*d
+					q := z * d / den
+					g += q
+					dg -= q * d / den
+				}
+				return g, dg, nil
+			},
+			Lo: 0, Hi: 1, FLo: g0, FHi: g1, Start: 0.5, XTol: 1e-15, MaxIter: maxIter,
+		})
+		if err != nil || !(r.Converged || r.Stalled) {
 			return 0, chem.Errorf(chem.KindNoConvergence,
 				"the solid-solution equilibrium did not converge in %d iterations", maxIter)
 		}
+		beta = r.X
 	}
 	var solidMass float64
 	for i, z := range m.z {
@@ -493,33 +483,25 @@ func (m *Mixture) liquidusK(first, last int, shiftK float64, maxIter int) (float
 		maxIter = DefaultMaxIterations
 	}
 	// h(u) = Σ z_i exp(a_i u − a_i/Tm_i) − 1 is increasing and convex in u;
-	// h(1/maxTm) ≤ 0 and h(uMin) ≥ 0.
-	// Newton from the right end: h is convex and increasing, so the
-	// iterates stay right of the root and decrease monotonically.
-	lo, hi := 1/(maxTm+shiftK), uMin
-	u := hi
-	for it := 0; it < maxIter; it++ {
-		var h, dh float64
-		for i := first; i < last; i++ {
-			a := m.a[i]
-			e := m.z[i] * fastExp(a*u-a/(m.tm[i]+shiftK))
-			h += e
-			dh += a * e
-		}
-		h--
-		if h > 0 {
-			hi = u
-		} else {
-			lo = u
-		}
-		next := u - h/dh
-		if !(next >= lo && next <= hi) || math.IsNaN(next) {
-			next = 0.5 * (lo + hi)
-		}
-		if math.Abs(next-u) < 1e-16 || hi-lo < 1e-16 {
-			return 1 / next, nil
-		}
-		u = next
+	// h(1/maxTm) ≤ 0 and h(uMin) ≥ 0. Newton from the right end: h is
+	// convex and increasing, so the iterates stay right of the root and
+	// decrease monotonically.
+	r, err := roots.Find(roots.Problem{
+		F: func(u float64) (float64, float64, error) {
+			var h, dh float64
+			for i := first; i < last; i++ {
+				a := m.a[i]
+				e := m.z[i] * fastExp(a*u-a/(m.tm[i]+shiftK))
+				h += e
+				dh += a * e
+			}
+			return h - 1, dh, nil
+		},
+		Lo: 1 / (maxTm + shiftK), Hi: uMin, FLo: math.NaN(), FHi: math.NaN(), Increasing: true,
+		Start: uMin, XTol: 1e-16, MaxIter: maxIter,
+	})
+	if err != nil || !(r.Converged || r.Stalled) {
+		return 0, chem.Errorf(chem.KindNoConvergence, "the solid-solution clear point did not converge in %d iterations", maxIter)
 	}
-	return 0, chem.Errorf(chem.KindNoConvergence, "the solid-solution clear point did not converge in %d iterations", maxIter)
+	return 1 / r.X, nil
 }
