@@ -133,29 +133,26 @@ func limitWarning(msg, _ string) chem.Warning {
 }
 
 func (m Measurements) validate() error {
-	bad := chem.Errorf(chem.KindInvalid, "the measurements are invalid")
+	var bad chem.FieldErrors
 	if len(m.SFC) == 0 && !m.HasSlipMeltingPoint {
-		bad.WithField("give SFC points, a slip melting point or both", "measured")
+		bad.Invalid("give SFC points, a slip melting point or both", "measured")
 	}
 	if len(m.SFC) > MaxTemperatures {
-		bad.WithField(fmt.Sprintf("at most %d points", MaxTemperatures), "measured", "sfc_points")
+		bad.Invalid(fmt.Sprintf("at most %d points", MaxTemperatures), "measured", "sfc_points")
 	}
 	for i, pt := range m.SFC {
 		if !inTemperatureRange(pt.TemperatureC) {
-			bad.WithField(fmt.Sprintf("temperature must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "measured", "sfc_points", i, "temperature_c")
+			bad.Invalid(fmt.Sprintf("temperature must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "measured", "sfc_points", i, "temperature_c")
 		}
 		if !(pt.SolidFatPercent >= 0 && pt.SolidFatPercent <= 100) {
-			bad.WithField("SFC must be from 0 to 100 %", "measured", "sfc_points", i, "solid_fat_percent")
+			bad.Invalid("SFC must be from 0 to 100 %", "measured", "sfc_points", i, "solid_fat_percent")
 		}
 	}
 	if m.HasSlipMeltingPoint && !inTemperatureRange(m.SlipMeltingPointC) {
-		bad.WithField(fmt.Sprintf("must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "measured", "slip_melting_point_c")
+		bad.Invalid(fmt.Sprintf("must be from %g to %g °C", MinTemperatureC, MaxTemperatureC), "measured", "slip_melting_point_c")
 	}
-	if len(bad.Fields) > 0 {
-		if len(bad.Fields) == 1 {
-			bad.Message = bad.Fields[0].Reason
-		}
-		return bad
+	if err := bad.Err(""); err != nil {
+		return err
 	}
 	return nil
 }

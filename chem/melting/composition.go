@@ -408,18 +408,18 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 			return nil, nil, chem.Errorf(chem.KindInvalid, "enrichment factors must match the profile's acids").
 				WithField(fmt.Sprintf("%d factors for %d acids", len(opt.EnrichmentFactors), n), "sn2_enrichment_factors")
 		}
-		bad := chem.Errorf(chem.KindInvalid, "enrichment factors must be finite and non-negative")
+		var bad chem.FieldErrors
 		anyPositive := false
 		for i, e := range opt.EnrichmentFactors {
 			if math.IsNaN(e) || math.IsInf(e, 0) || e < 0 {
-				bad.WithField("must be a finite number >= 0", "sn2_enrichment_factors", i)
+				bad.Invalid("must be a finite number >= 0", "sn2_enrichment_factors", i)
 			}
 			if e > 0 {
 				anyPositive = true
 			}
 		}
-		if len(bad.Fields) > 0 {
-			return nil, nil, bad
+		if err := bad.Err("enrichment factors must be finite and non-negative"); err != nil {
+			return nil, nil, err
 		}
 		if !anyPositive {
 			return nil, nil, chem.Errorf(chem.KindInvalid, "at least one enrichment factor must be positive").
@@ -510,12 +510,12 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 		index[c.Acid.ID] = i
 	}
 	b := make([]float64, len(x))
-	bad := chem.Errorf(chem.KindInvalid, "the sn-2 composition does not fit the profile")
+	var bad chem.FieldErrors
 	for k, c := range sn2.Components {
 		i, ok := index[c.Acid.ID]
 		if !ok {
 			if c.MoleFraction > 0 {
-				bad.WithField(c.Acid.ID+" is at sn-2 but not in the profile", "sn2_profile", "acids", k)
+				bad.Invalid(c.Acid.ID+" is at sn-2 but not in the profile", "sn2_profile", "acids", k)
 			}
 			continue
 		}
@@ -527,18 +527,15 @@ func suppliedSN2(p *chem.Profile, x []float64, sn2 *chem.Profile) ([]float64, []
 		over := b[i] - 3*x[i]
 		switch {
 		case over > maxSN2Overshoot:
-			bad.WithField(fmt.Sprintf("%s is %.4g mole fraction at sn-2 but at most 3 × %.4g = %.4g is possible",
+			bad.Invalid(fmt.Sprintf("%s is %.4g mole fraction at sn-2 but at most 3 × %.4g = %.4g is possible",
 				p.Components[i].Acid.ID, b[i], x[i], 3*x[i]), "sn2_profile")
 		case over > 0:
 			b[i] = 3 * x[i]
 			clipped = append(clipped, p.Components[i].Acid.ID)
 		}
 	}
-	if len(bad.Fields) > 0 {
-		if len(bad.Fields) == 1 {
-			bad.Message = bad.Fields[0].Reason
-		}
-		return nil, nil, bad
+	if err := bad.Err(""); err != nil {
+		return nil, nil, err
 	}
 	if len(clipped) > 0 {
 		// Share the clipped excess among the other sn-2 acids in

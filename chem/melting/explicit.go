@@ -33,34 +33,31 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	if err := opt.validate(); err != nil {
 		return nil, err
 	}
-	bad := chem.Errorf(chem.KindInvalid, "the TAG composition cannot be used")
+	var bad chem.FieldErrors
 	if len(list) == 0 {
-		bad.WithField("at least one species is required", "triacylglycerols")
+		bad.Invalid("at least one species is required", "triacylglycerols")
 	}
 	var sum float64
 	for i, t := range list {
 		if t.Outer1 == nil || t.Middle == nil || t.Outer2 == nil {
-			bad.WithField("three acids are required", "triacylglycerols", i)
+			bad.Invalid("three acids are required", "triacylglycerols", i)
 		}
 		if math.IsNaN(t.MolePercent) || math.IsInf(t.MolePercent, 0) || t.MolePercent < 0 || t.MolePercent > 100 {
-			bad.WithField("must be a finite number from 0 to 100", "triacylglycerols", i, "mole_percent")
+			bad.Invalid("must be a finite number from 0 to 100", "triacylglycerols", i, "mole_percent")
 			continue
 		}
 		sum += t.MolePercent
 	}
-	if len(bad.Fields) == 0 {
+	if bad.Len() == 0 {
 		switch {
 		case !(sum > 0):
-			bad.WithField("no species with a positive share", "triacylglycerols")
+			bad.Invalid("no species with a positive share", "triacylglycerols")
 		case math.Abs(sum-100) > tol+chem.SumNoise:
-			bad.WithField(fmt.Sprintf("the shares sum to %.4g, outside 100 ± %.4g", sum, tol), "triacylglycerols")
+			bad.Invalid(fmt.Sprintf("the shares sum to %.4g, outside 100 ± %.4g", sum, tol), "triacylglycerols")
 		}
 	}
-	if len(bad.Fields) > 0 {
-		if len(bad.Fields) == 1 {
-			bad.Message = bad.Fields[0].Reason
-		}
-		return nil, bad
+	if err := bad.Err(""); err != nil {
+		return nil, err
 	}
 
 	// The acids in order of first appearance, and the species by index.

@@ -139,50 +139,47 @@ func (o Options) withDefaults() Options {
 
 // validate checks options after defaults are filled.
 func (o Options) validate() error {
-	bad := chem.Errorf(chem.KindInvalid, "the melting options are invalid")
+	var bad chem.FieldErrors
 	if !o.Polymorph.valid() {
-		bad.WithField("must be alpha, beta_prime or beta", "polymorph")
+		bad.Invalid("must be alpha, beta_prime or beta", "polymorph")
 	}
 	if o.SolidModel < MultiplePureSolids || o.SolidModel > SolidSolutionFamilies {
-		bad.WithField("must be multiple_pure_solids, ideal_solid_solution or solid_solution_families", "solid_model")
+		bad.Invalid("must be multiple_pure_solids, ideal_solid_solution or solid_solution_families", "solid_model")
 	}
 	if o.Composition.Distribution != Positional && o.Composition.Distribution != FullRandom {
-		bad.WithField("must be sn13_random_sn2_random or full_random", "distribution")
+		bad.Invalid("must be sn13_random_sn2_random or full_random", "distribution")
 	}
 	if o.Composition.SN2 < SN2SeedOil || o.Composition.SN2 > SN2Enrichment {
-		bad.WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "sn2_estimate")
+		bad.Invalid("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "sn2_estimate")
 	}
 	if f := o.Composition.PoolFloorMoleFraction; !(f > 0 && f <= 0.01) {
-		bad.WithField("must be > 0 and <= 0.01", "pool_floor_mole_fraction")
+		bad.Invalid("must be > 0 and <= 0.01", "pool_floor_mole_fraction")
 	}
 	if len(o.TemperaturesC) > MaxTemperatures {
-		bad.WithField(fmt.Sprintf("at most %d temperatures", MaxTemperatures), "temperatures_c")
+		bad.Invalid(fmt.Sprintf("at most %d temperatures", MaxTemperatures), "temperatures_c")
 	}
 	for i, t := range o.TemperaturesC {
 		if !inTemperatureRange(t) {
-			bad.WithField(fmt.Sprintf("must be a number from %g to %g °C", MinTemperatureC, MaxTemperatureC), "temperatures_c", i)
+			bad.Invalid(fmt.Sprintf("must be a number from %g to %g °C", MinTemperatureC, MaxTemperatureC), "temperatures_c", i)
 		}
 	}
 	if t := o.SlipThresholdPercent; !(t > 0 && t <= 50) {
-		bad.WithField("must be > 0 and <= 50", "slip_threshold_percent")
+		bad.Invalid("must be > 0 and <= 50", "slip_threshold_percent")
 	}
 	if s := o.Calibration.TemperatureShiftK; !(math.Abs(s) <= MaxCalibrationShiftK) {
-		bad.WithField(fmt.Sprintf("must be within ±%g K", MaxCalibrationShiftK), "calibration", "temperature_shift_k")
+		bad.Invalid(fmt.Sprintf("must be within ±%g K", MaxCalibrationShiftK), "calibration", "temperature_shift_k")
 	}
 	if t := o.Calibration.SlipThresholdPercent; !(t >= 0 && t <= 50) {
-		bad.WithField("must be >= 0 and <= 50", "calibration", "slip_threshold_percent")
+		bad.Invalid("must be >= 0 and <= 50", "calibration", "slip_threshold_percent")
 	}
 	if o.MainSpecies < 0 || o.MainSpecies > 100 {
-		bad.WithField("must be from 0 to 100", "main_species_count")
+		bad.Invalid("must be from 0 to 100", "main_species_count")
 	}
 	if o.MaxIterations < 1 || o.MaxIterations > 100000 {
-		bad.WithField("must be from 1 to 100000", "max_iterations")
+		bad.Invalid("must be from 1 to 100000", "max_iterations")
 	}
-	if len(bad.Fields) > 0 {
-		if len(bad.Fields) == 1 {
-			bad.Message = bad.Fields[0].Reason
-		}
-		return bad
+	if err := bad.Err(""); err != nil {
+		return err
 	}
 	return nil
 }

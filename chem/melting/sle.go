@@ -109,22 +109,22 @@ func NewMixture(comps []Component) (*Mixture, error) {
 	if len(comps) == 0 {
 		return nil, chem.Errorf(chem.KindInvalid, "the mixture has no components").WithField("empty", "components")
 	}
-	bad := chem.Errorf(chem.KindInvalid, "the mixture has invalid components")
+	var bad chem.FieldErrors
 	var sz float64
 	for i, c := range comps {
 		for _, v := range []float64{c.MoleFraction, c.MeltingPointK, c.EnthalpyKJPerMol, c.MolarMass} {
 			if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
-				bad.WithField("values must be finite and non-negative", "components", i)
+				bad.Invalid("values must be finite and non-negative", "components", i)
 				break
 			}
 		}
 		if c.MeltingPointK <= 0 || c.EnthalpyKJPerMol <= 0 || c.MolarMass <= 0 {
-			bad.WithField("melting point, enthalpy and molar mass must be positive", "components", i)
+			bad.Invalid("melting point, enthalpy and molar mass must be positive", "components", i)
 		}
 		sz += c.MoleFraction
 	}
-	if len(bad.Fields) > 0 {
-		return nil, bad
+	if err := bad.Err("the mixture has invalid components"); err != nil {
+		return nil, err
 	}
 	if sz <= 0 {
 		return nil, chem.Errorf(chem.KindInvalid, "the mole fractions sum to zero").WithField("sum is zero", "components")
