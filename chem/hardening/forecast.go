@@ -7,7 +7,6 @@ import (
 	"strings"
 
 	"lipidsvc/chem"
-	"lipidsvc/chem/internal/roots"
 )
 
 // Path sizes accepted by [Forecast].
@@ -172,95 +171,6 @@ type ForecastResult struct {
 	Flags Flags
 	// Warnings say where the model had to simplify for this feed.
 	Warnings []chem.Warning
-}
-
-// trajectory evaluates the hardening path of one feed for one catalyst.
-type trajectory struct {
-	net    *network
-	x0     []float64
-	x      []float64
-	feedIV float64
-	// anchorTau and anchorX are a known point of the path; later points
-	// are evolved from it, x(τ) = exp(A(τ − τa))·x(τa), which is exact and
-	// keeps ‖A·Δτ‖ small so the matrix exponential needs no squaring.
-	anchorTau float64
-	anchorX   []float64
-	// evals counts network evaluations, for benchmarks and tests.
-	evals int
-}
-
-func newTrajectory(net *network, x0 []float64) *trajectory {
-	tr := &trajectory{net: net, x0: x0, x: make([]float64, len(x0)), anchorX: x0}
-	tr.feedIV = net.iodineValue(x0)
-	return tr
-}
-
-// anchor makes (tau, x) the point later evaluations start from; x is
-// copied.
-func (tr *trajectory) anchor(tau float64, x []float64) {
-	tr.anchorTau = tau
-	tr.anchorX = append([]float64(nil), x...)
-}
-
-// ivAt returns the iodine value at path variable tau and its slope
-// dIV/dτ; it leaves the composition in tr.x.
-func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
-	tr.evals++
-	if tau >= tr.anchorTau {
-		tr.net.evolve(tr.anchorX, tau-tr.anchorTau, tr.x)
-	} else {
-		tr.net.evolve(tr.x0, tau, tr.x)
-	}
-	return tr.net.iodineValueSlope(tr.x)
-}
-
-// solve finds τ in (lo, hi) with IV(τ) = target, to within ivTolerance,
-// starting from start. On success tr.x holds the composition at the root. The caller guarantees IV(lo) > target and, unless
-// hi is +Inf, IV(hi) < target.
-//
-// Method: the shared bracketed root finder (chem/internal/roots), which
-// here takes Newton steps safeguarded by bisection (the "rtsafe" scheme,
-// Press et al., Numerical Recipes, 3rd ed., §9.4). The
-// iodine value falls strictly along the path (every hydrogenation step
-// removes a double bond and adds mass, isomerisation changes neither) and
-// tends to zero, so the root is unique; its derivative is exact and cheap
-// (dx/dτ = A·x), which makes Newton converge in three or four evaluations
-// where Brent's derivative-free method needs about ten, and every matrix
-// exponential saved counts. Each evaluation narrows the bracket; a Newton
-// step that would leave it is replaced by bisection, or by doubling while
-// no upper end is known yet. The iteration cap ends a solve that does not
-// converge with chem.KindNoConvergence.
-func (tr *trajectory) solve(ctx context.Context, target, lo, hi, start float64) (float64, error) {
-	r, err := roots.Find(roots.Problem{
-		F: func(tau float64) (float64, float64, error) {
-			iv, slope := tr.ivAt(tau)
-			return iv - target, slope, nil
-		},
-		Lo: lo, Hi: hi, FLo: math.NaN(), FHi: math.NaN(), Start: start, Step: 1,
-		FTol: ivTolerance, MaxIter: rootIterations, Check: ctx.Err,
-	})
-	switch {
-	case err != nil:
-		return 0, err
-	case r.Converged:
-		return r.X, nil
-	case r.Stalled && math.Abs(r.F) <= ivAcceptTolerance:
-		// The bracket has shrunk to adjacent numbers: near steep corners
-		// of the parameter space the iodine value can step by more than
-		// ivTolerance between neighbouring τ. Accept the point when it is
-		// still far inside the 0.01 the target promises.
-		return r.X, nil
-	}
-	return 0, chem.Errorf(chem.KindNoConvergence,
-		"the root finder did not reach iodine value %.6g within %d iterations", target, rootIterations).
-		WithField("target not reached within the solver's limits", "target")
-}
-
-// tauAt finds the path variable at which the iodine value equals target,
-// which must lie strictly between 0 and the feed's iodine value, starting
-// the search at start (0 when nothing better is known).
-func (tr *trajectory) tauAt(ctx context.Context, target, start float64) (float64, error) {
-	return tr.solve(ctx, target, 0, math.Inf(1), start)
 }
 
 // ForecastOf predicts the composition of an oil hardened to a target with a

@@ -6,7 +6,6 @@ import (
 	"slices"
 
 	"lipidsvc/chem"
-	"lipidsvc/chem/internal/roots"
 )
 
 // SolidModel is the model of the solid phase in the solid–liquid
@@ -200,12 +199,6 @@ type workspace struct {
 	lastT, prevT, prevL float64
 }
 
-// breakpoint is one candidate component of the eutectic scan.
-type breakpoint struct {
-	r float64 // z_i / x_i,sat
-	i int32
-}
-
 func (m *Mixture) newWorkspace() *workspace {
 	n := len(m.z)
 	nf := len(m.famOff) - 1
@@ -279,164 +272,6 @@ func (m *Mixture) saturation(tK, shiftK float64, w *workspace) {
 	}
 }
 
-// sfcEutectic solves the multiple-pure-solids model exactly (see
-// eutecticLiquid) and returns the SFC, mass %.
-func (m *Mixture) sfcEutectic(tK, shiftK float64, w *workspace) float64 {
-	// A component at or above its melting point (x_sat ≥ 1) is dissolved at
-	// the solution: were it saturated, its term alone would make the sum
-	// ≥ 1 with L < z_i. It needs no exponential and stays out of the sort.
-	inv := 1 / tK
-	cand := w.cand[:0]
-	var rmax float64
-	for i, a := range m.a {
-		tm := m.tm[i] + shiftK
-		if tK >= tm {
-			continue
-		}
-		var s float64
-		if shiftK == 0 {
-			s = fastExp(m.c[i] - a*inv)
-		} else {
-			s = fastExp(a/tm - a*inv)
-		}
-		r := math.Inf(1)
-		if s > 0 {
-			r = m.z[i] / s
-		}
-		w.s[i] = s
-		cand = append(cand, breakpoint{r, int32(i)})
-		rmax = math.Max(rmax, r)
-	}
-	w.cand = cand
-	if rmax <= 1 {
-		return 0
-	}
-	liquid := eutecticLiquid(cand, m.z, w.s)
-	var solidMass float64
-	for _, b := range cand {
-		if b.r > liquid {
-			if s := m.z[b.i] - liquid*w.s[b.i]; s > 0 {
-				solidMass += s * m.mass[b.i]
-			}
-		}
-	}
-	// Rounding can put an all-solid fat a few ulps above 100 %.
-	return math.Min(100, 100*solidMass/m.totalMass)
-}
-
-// eutecticLiquid returns the liquid fraction L solving
-// Σ min(z_i/L, x_i,sat) = 1. On the interval between two consecutive
-// breakpoints r = z/x_sat the sum is Z/L + S (Z the mole fractions of the
-// dissolved components, S the solubilities of the saturated ones), so
-// L = Z/(1 − S) exactly once the interval is known. The interval is found
-// by ordering the breakpoints around pivots (three-way partition, as in
-// quicksort): the sum is decreasing in L, so its value at a pivot tells on
-// which side the root lies, and only that side is ordered further. This
-// yields the same interval as a full sort in linear expected time.
-// Components not in cand (at or above their melting point) are dissolved.
-func eutecticLiquid(cand []breakpoint, z, s []float64) float64 {
-	dissolved := 1.0 // Σ z of components known to be dissolved, less those in cand
-	for _, b := range cand {
-		dissolved -= z[b.i]
-	}
-	saturated := 0.0 // Σ x_sat of components known to be saturated
-	lo, hi := 0, len(cand)
-	for lo < hi {
-		p := cand[lo+(hi-lo)/2].r
-		// Three-way partition of cand[lo:hi]: < p | == p | > p.
-		lt, i, gt := lo, lo, hi
-		for i < gt {
-			switch r := cand[i].r; {
-			case r < p:
-				cand[lt], cand[i] = cand[i], cand[lt]
-				lt++
-				i++
-			case r > p:
-				gt--
-				cand[gt], cand[i] = cand[i], cand[gt]
-			default:
-				i++
-			}
-		}
-		var zLow, sHigh, sMid float64
-		for _, b := range cand[lo:gt] {
-			zLow += z[b.i]
-		}
-		for _, b := range cand[lt:gt] {
-			sMid += s[b.i]
-		}
-		for _, b := range cand[gt:hi] {
-			sHigh += s[b.i]
-		}
-		// Value of the sum at L = p, with the components at p dissolved
-		// (the sum is continuous there).
-		if (dissolved+zLow)/p+saturated+sHigh >= 1 {
-			dissolved += zLow // the root is at or above p
-			lo = gt
-		} else {
-			saturated += sHigh + sMid // the root is below p
-			hi = lt
-		}
-	}
-	if saturated >= 1 || dissolved <= 0 {
-		return 0
-	}
-	return math.Min(dissolved/(1-saturated), 1)
-}
-
-// sfcSolidSolution solves the Rachford–Rice equation for the solid fraction
-// β by Newton's method safeguarded by bisection; g(β) is decreasing on
-// [0, 1], so the bracket always holds the root.
-func (m *Mixture) sfcSolidSolution(tK, shiftK float64, maxIter int, w *workspace) (float64, error) {
-	if maxIter <= 0 {
-		maxIter = DefaultMaxIterations
-	}
-	m.saturation(tK, shiftK, w)
-	k := w.r // reuse as K_i = 1/x_sat
-	var g0, g1 float64
-	for i, s := range w.s {
-		k[i] = 1 / s
-		g0 += m.z[i] * (k[i] - 1)
-		g1 += m.z[i] * (1 - s)
-	}
-	if g0 <= 0 {
-		return 0, nil
-	}
-	beta := 1.0
-	if g1 < 0 {
-		// g(β) = Σ z_i(K_i − 1)/(1 + β(K_i − 1)) falls from g0 > 0 to
-		// g1 < 0 on [0, 1]; its derivative is exact and cheap.
-		r, err := roots.Find(roots.Problem{
-			F: func(beta float64) (float64, float64, error) {
-				var g, dg float64
-				for i, z := range m.z {
-					d := k[i] - 1
-					den := 1 + beta*d
-					q := z * d / den
-					g += q
-					dg -= q * d / den
-				}
-				return g, dg, nil
-			},
-			Lo: 0, Hi: 1, FLo: g0, FHi: g1, Start: 0.5, XTol: 1e-15, MaxIter: maxIter,
-		})
-		if err != nil || !(r.Converged || r.Stalled) {
-			return 0, chem.Errorf(chem.KindNoConvergence,
-				"the solid-solution equilibrium did not converge in %d iterations", maxIter)
-		}
-		beta = r.X
-	}
-	var solidMass float64
-	for i, z := range m.z {
-		xs := k[i] * z / (1 + beta*(k[i]-1))
-		if math.IsInf(k[i], 1) {
-			xs = z / beta
-		}
-		solidMass += beta * xs * m.mass[i]
-	}
-	return math.Min(100, 100*solidMass/m.totalMass), nil
-}
-
 // ClearPointC is the temperature (°C) at which the last solid dissolves.
 // For MultiplePureSolids it is exact: the highest of the temperatures at
 // which each component's ideal solubility equals its mole fraction,
@@ -464,44 +299,4 @@ func (m *Mixture) clearPointK(model SolidModel, shiftK float64, maxIter int) (fl
 		}
 		return 1 / uMin, nil
 	}
-}
-
-// liquidusK is the temperature at which an ideal solid solution of the
-// components first..last−1 starts to crystallise from the whole liquid:
-// Σ z_i K_i(T) = 1, solved by safeguarded Newton in u = 1/T.
-func (m *Mixture) liquidusK(first, last int, shiftK float64, maxIter int) (float64, error) {
-	uMin, maxTm := math.Inf(1), 0.0
-	for i := first; i < last; i++ {
-		a := m.a[i]
-		uMin = math.Min(uMin, (a/(m.tm[i]+shiftK)-math.Log(m.z[i]))/a)
-		maxTm = math.Max(maxTm, m.tm[i])
-	}
-	if last-first == 1 {
-		return 1 / uMin, nil
-	}
-	if maxIter <= 0 {
-		maxIter = DefaultMaxIterations
-	}
-	// h(u) = Σ z_i exp(a_i u − a_i/Tm_i) − 1 is increasing and convex in u;
-	// h(1/maxTm) ≤ 0 and h(uMin) ≥ 0. Newton from the right end: h is
-	// convex and increasing, so the iterates stay right of the root and
-	// decrease monotonically.
-	r, err := roots.Find(roots.Problem{
-		F: func(u float64) (float64, float64, error) {
-			var h, dh float64
-			for i := first; i < last; i++ {
-				a := m.a[i]
-				e := m.z[i] * fastExp(a*u-a/(m.tm[i]+shiftK))
-				h += e
-				dh += a * e
-			}
-			return h - 1, dh, nil
-		},
-		Lo: 1 / (maxTm + shiftK), Hi: uMin, FLo: math.NaN(), FHi: math.NaN(), Increasing: true,
-		Start: uMin, XTol: 1e-16, MaxIter: maxIter,
-	})
-	if err != nil || !(r.Converged || r.Stalled) {
-		return 0, chem.Errorf(chem.KindNoConvergence, "the solid-solution clear point did not converge in %d iterations", maxIter)
-	}
-	return 1 / r.X, nil
 }

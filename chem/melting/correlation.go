@@ -368,3 +368,84 @@ func findOverride(sn1, sn2, sn3 string, p Polymorph) (measuredOverride, bool) {
 
 // zeroCelsiusK is 0 °C in kelvin.
 const zeroCelsiusK = chem.ZeroCelsiusK
+
+// prepareAcids computes the per-acid parts of the correlation for
+// polymorph p: ΔH and ΔS are sums over chains plus the intercepts and the
+// mismatch term. It also returns the acids outside the fitted data, those
+// with a share above the sum noise when shares is given (nil: all).
+func prepareAcids(acids []*chem.FattyAcid, shares []float64, p Polymorph) (prepared, []string) {
+	coef := fittedCoefficients
+	k := coef.For(p)
+	n := len(acids)
+	chains := make([]chain, n)
+	// Per-acid ΔH and ΔS parts at sn-1/3 (outer) and at sn-2 (the
+	// cis-monoene term depends on the position).
+	hcOuter, scOuter := make([]float64, n), make([]float64, n)
+	hcSN2, scSN2 := make([]float64, n), make([]float64, n)
+	var outside []string
+	sat := chain{kind: kindSaturated}
+	part := func(s structure, carbons int) (h, sj float64) {
+		g := k.OddChainKJ*s.groups[2] + k.CisMonoeneSN2KJ*s.groups[3] + k.CisMonoeneOuterKJ*s.groups[4] +
+			k.TransMonoeneKJ*s.groups[5] + k.DieneKJ*s.groups[6] + k.TrieneKJ*s.groups[7]
+		return k.EnthalpyPerCarbonKJ*float64(carbons) + g,
+			k.EntropyPerCarbonJ*float64(carbons) + 1000*g/coef.CompensationTemperatureK
+	}
+	for i, a := range acids {
+		c := chainOf(a)
+		chains[i] = c
+		// An acid the fat holds no more than a trace of (a hardening
+		// product lists every acid the network can form, many at 0 %) is
+		// not worth naming.
+		if !c.inFit && (shares == nil || shares[i] > chem.SumNoise) {
+			outside = append(outside, a.ID)
+		}
+		hcOuter[i], scOuter[i] = part(structureOf(c, sat, sat), c.carbons)
+		hcSN2[i], scSN2[i] = part(structureOf(sat, c, sat), c.carbons)
+	}
+	// Mismatch terms 1 − exp(−(d/w)²) for every chain-length difference.
+	maxC := 0
+	for _, c := range chains {
+		maxC = max(maxC, c.carbons)
+	}
+	gx, gy := make([]float64, maxC+1), make([]float64, maxC+1)
+	for d := range gx {
+		gx[d] = mismatch(float64(d), coef.SN2MismatchWidthCarbons)
+		gy[d] = mismatch(float64(d), coef.OuterMismatchWidthCarbons)
+	}
+	return prepared{chains: chains, hcOuter: hcOuter, scOuter: scOuter, hcSN2: hcSN2, scSN2: scSN2, gx: gx, gy: gy, k: k,
+		thetaK: coef.CompensationTemperatureK, overrides: resolveOverrides(acids, p)}, outside
+}
+
+// resolveOverrides maps the measured values for polymorph p onto a dense
+// table over species acid-index triples (outer, middle, outer; both outer
+// orders): entry k > 0 means measuredOverrides[k−1]. It returns nil when no
+// override applies to these acids.
+func resolveOverrides(acids []*chem.FattyAcid, p Polymorph) []int16 {
+	var out []int16
+	n := len(acids)
+	idx := func(id string) (int, bool) {
+		for i, a := range acids {
+			if a.ID == id {
+				return i, true
+			}
+		}
+		return 0, false
+	}
+	for k, m := range measuredOverrides {
+		if m.polymorph != p {
+			continue
+		}
+		o1, ok1 := idx(m.outer1)
+		mid, ok2 := idx(m.middle)
+		o2, ok3 := idx(m.outer2)
+		if !ok1 || !ok2 || !ok3 {
+			continue
+		}
+		if out == nil {
+			out = make([]int16, n*n*n)
+		}
+		out[(o1*n+mid)*n+o2] = int16(k + 1)
+		out[(o2*n+mid)*n+o1] = int16(k + 1)
+	}
+	return out
+}
