@@ -12,7 +12,7 @@ import (
 	"lipidsvc/api"
 )
 
-// soyFeed is the soy-like check vector of DOMAIN.md §3 with explicit labels.
+// soyFeed is the soy-like check vector of the chem package documentation with explicit labels.
 const soyFeed = `{"acids":[
  {"acid":"16:0","percent":10.5},{"acid":"16:1 c9","percent":0.1},{"acid":"18:0","percent":4.0},
  {"acid":"18:1 c9","percent":23.0},{"acid":"18:2 c9,c12","percent":53.7},{"acid":"18:3 c9,c12,c15","percent":7.6},
@@ -31,7 +31,7 @@ func forecast(t *testing.T, body string) api.ForecastResponse {
 func TestForecastSoybeanNickelSelective(t *testing.T) {
 	got := forecast(t, `{"profile":`+soyFeed+`,"target":{"iodine_value":70},"catalyst":{"preset":"nickel_selective"},"path_points":11}`)
 	require.InDelta(t, 70, got.IodineValue, 0.01)
-	require.InDelta(t, 132.98, got.FeedIodineValue, 0.01) // [calc] DOMAIN.md §4
+	require.InDelta(t, 132.98, got.FeedIodineValue, 0.01) // [calc]
 	// Trans 18:1 (every 18:1 entry with a trans bond) inside the published
 	// band 46 ± 4 at IV 70 ± 6.
 	var trans181 float64

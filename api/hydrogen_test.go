@@ -10,7 +10,7 @@ import (
 	"lipidsvc/api"
 )
 
-// TestHydrogenDemandWorkedCase checks DOMAIN.md §7 [calc, ideal gas]:
+// TestHydrogenDemandWorkedCase checks the hardening package documentation [calc, ideal gas]:
 // soybean IV 133 → 70 on the feed basis = 2482.2 mol/t = 5.004 kg/t =
 // 55.64 m³ (0 °C, 101.325 kPa) per tonne; on the product basis 4.976 kg/t.
 func TestHydrogenDemandWorkedCase(t *testing.T) {
@@ -42,7 +42,7 @@ func TestHydrogenDemandWorkedCase(t *testing.T) {
 }
 
 // TestHydrogenReferenceStates: one IV unit per tonne at each reference state
-// [calc, DOMAIN.md §7]: 0.8831 m³ (0 °C, 101.325 kPa), 0.8948 (0 °C,
+// [calc]: 0.8831 m³ (0 °C, 101.325 kPa), 0.8948 (0 °C,
 // 100 kPa), 0.9316 (15 °C, 101.325 kPa), 0.9478 (20 °C, 101.325 kPa: 0.8831
 // × 293.15/273.15), 32.96 scf (60 °F, 14.696 psia;
 // 1 ft³ = 0.028316846592 m³). The trade's "about 0.9 m³ per tonne per IV
@@ -75,7 +75,7 @@ func TestHydrogenReferenceStates(t *testing.T) {
 }
 
 // TestHydrogenFeedAsProfile: the soy-like vector's exact iodine value
-// (132.98 [calc, DOMAIN.md §4]) is used as the feed.
+// (132.98 [calc]) is used as the feed.
 func TestHydrogenFeedAsProfile(t *testing.T) {
 	app := newApp(t)
 	body := `{"feed":` + soyLike[:len(soyLike)-1] + `},"target":{"iodine_value":70},"batch_mass_kg":1000,

@@ -10,7 +10,7 @@ import (
 	"lipidsvc/api"
 )
 
-// palmLike is the palm-like check vector of DOMAIN.md §3 (a test vector).
+// palmLike is the palm-like check vector of the chem package documentation (a test vector).
 const palmLike = `{"acids":[{"acid":"12:0","percent":0.2},{"acid":"14:0","percent":1.0},{"acid":"16:0","percent":44.0},
  {"acid":"16:1 c9","percent":0.2},{"acid":"18:0","percent":4.5},{"acid":"18:1 c9","percent":39.2},{"acid":"18:2 c9,c12","percent":10.1},
  {"acid":"18:3 c9,c12,c15","percent":0.3},{"acid":"20:0","percent":0.4},{"acid":"20:1 c11","percent":0.1}]}`

@@ -37,7 +37,7 @@ func TestFattyAcidCatalogue(t *testing.T) {
 	}
 	oleic := byID["18:1 c9"]
 	require.Equal(t, "oleic", oleic.CommonName)
-	require.InDelta(t, 282.468, oleic.MolarMassGPerMol, 0.005) // [calc] DOMAIN.md §2
+	require.InDelta(t, 282.468, oleic.MolarMassGPerMol, 0.005) // [calc]
 	require.Equal(t, 9, *oleic.OmegaFamily)
 	require.True(t, oleic.DefaultForShorthand)
 	require.True(t, byID["18:1 t9"].Trans)

@@ -17,7 +17,7 @@ const soyLike = `{"profile":{"acids":[
  {"acid":"20:0","percent":0.4},{"acid":"20:1","percent":0.3},{"acid":"22:0","percent":0.4}]}}`
 
 // TestPropertiesSoyLike checks the certificate values through the whole
-// HTTP stack against DOMAIN.md §3-§6 [calc]: IV exact 132.98, AOCS Cd 1c-85
+// HTTP stack against the chem package documentation [calc]: IV exact 132.98, AOCS Cd 1c-85
 // 133.001, SV 192.65, mean molar masses 278.552 / 292.579 / 873.705,
 // Cox 7.40, AI 0.124.
 func TestPropertiesSoyLike(t *testing.T) {
@@ -71,7 +71,7 @@ func TestPropertiesMaterials(t *testing.T) {
 	body := func(material string) string {
 		return `{"material":"` + material + `","profile":{"acids":[{"acid":"oleic","percent":100}]}}`
 	}
-	// Pure compounds [calc, DOMAIN.md §4]: triolein 85.99, oleic acid 89.85,
+	// Pure compounds [calc]: triolein 85.99, oleic acid 89.85,
 	// methyl oleate 85.60.
 	cases := []struct {
 		material string

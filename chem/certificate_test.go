@@ -163,7 +163,7 @@ func TestCheckVectors(t *testing.T) {
 
 // TestCanolaExactMinusAOCSIs24_1 checks that the difference between the exact
 // and the AOCS Cd 1c-85 iodine values of the canola-like vector is the 24:1
-// contribution the method ignores [calc, DOMAIN.md §4].
+// contribution the method ignores [calc].
 func TestCanolaExactMinusAOCSIs24_1(t *testing.T) {
 	cat := NewCatalogue()
 	var canola map[string]float64
@@ -223,14 +223,14 @@ func TestAOCSNotForMethylEsters(t *testing.T) {
 	got := PropertiesOf(pureProfile(t, cat, "oleic"), MaterialMethylEster)
 	require.False(t, got.AOCSApplies)
 	require.Zero(t, got.IodineValueAOCS)
-	require.InDelta(t, 85.60, got.IodineValue, tolIodine) // methyl oleate [calc] DOMAIN.md §4
+	require.InDelta(t, 85.60, got.IodineValue, tolIodine) // methyl oleate [calc]
 	got = PropertiesOf(pureProfile(t, cat, "oleic"), MaterialFreeAcid)
 	require.InDelta(t, 89.86, got.IodineValueAOCS, 0.01) // 100 × free-acid factor 0.8986 [pub: AOCS Cd 1c-85]
 }
 
 // TestWeightAverageIsTheClassicMistake guards the harmonic (mole) mean: for
 // the coconut-like vector a weight-average molar mass gives SV ≈ 248.6
-// instead of 255.25 [calc, DOMAIN.md §5].
+// instead of 255.25 [calc].
 func TestWeightAverageIsTheClassicMistake(t *testing.T) {
 	cat := NewCatalogue()
 	coconut := map[string]float64{"6:0": 0.5, "8:0": 7.5, "10:0": 6.0, "12:0": 48.0, "14:0": 18.5, "16:0": 8.5, "18:0": 3.0, "18:1": 6.5, "18:2": 1.5}

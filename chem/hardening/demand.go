@@ -165,7 +165,7 @@ type HeatRelease struct {
 	// removed, from the cp model integrated from the start temperature. It
 	// takes the heat capacity of the feed mass and neglects the mass gain
 	// (on full saturation 1.06 % for an oil of IV 133, 1.5 % at IV 190:
-	// IV/253.81 × 2.016 g per 100 g, first principles, DOMAIN §7), the heat needed to warm the incoming hydrogen and the heat
+	// IV/253.81 × 2.016 g per 100 g, first principles, the hardening package documentation), the heat needed to warm the incoming hydrogen and the heat
 	// capacity of catalyst and vessel, all of which make a real rise smaller.
 	AdiabaticRiseK float64
 	// AdiabaticFinalTemperatureC is the start temperature plus AdiabaticRiseK.

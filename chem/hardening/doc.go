@@ -1,13 +1,21 @@
 // Package hardening holds the science of catalytic hydrogenation (hardening)
 // of fats and oils.
 //
-// The hydrogen part (hydrogen.go) answers the planning questions that follow
-// from stoichiometry alone: how much hydrogen a drop in iodine value takes,
-// what volume that is at a chosen gas reference state, how much gas a plant
-// has to supply once purity and losses are allowed for, how much heat the
-// reaction gives off and how far that heat would raise the temperature of the
-// oil if none were removed. Its entry point is [HydrogenDemand]; build its
-// input with [NewHydrogenRequest], which fills the documented defaults.
+// Each entry point takes a request in its own shape ([HydrogenDemand],
+// [Forecast], [Fit]): it reads the profiles, resolves presets and names,
+// applies every rule about inputs that exclude each other, fills the
+// defaults and reports errors and warnings at the path of the input they
+// concern. The typed engine beneath is [HydrogenDemandOf], [ForecastOf],
+// [ForecastToSlipMeltingPoint] and [FitOf].
+//
+// # Hydrogen and heat (demand.go, gas.go, heat.go, target.go)
+//
+// The hydrogen part answers the planning questions that follow from
+// stoichiometry alone: how much hydrogen a drop in iodine value takes, what
+// volume that is at a chosen gas reference state, how much gas a plant has
+// to supply once purity and losses are allowed for, how much heat the
+// reaction gives off and how far that heat would raise the temperature of
+// the oil if none were removed.
 //
 // Stoichiometry: one mole of diiodine (I2) and one mole of dihydrogen (H2)
 // each add across one C=C double bond, so the iodine value (grams of I2 per
@@ -15,7 +23,25 @@
 // removed from one tonne of feed takes 10^4 / M(I2) ≈ 39.40 mol of H2. Gas
 // volumes come from the ideal-gas law V = nRT/p with R = chem.GasConstant;
 // at the reference states offered, real hydrogen differs from it by less
-// than one part in a thousand [memory].
+// than one part in a thousand [memory]. Per tonne and iodine-value unit
+// that is 0.07943 kg of H2, 0.8831 m³ at 0 °C and 101.325 kPa, 0.8948 m³ at
+// 0 °C and 100 kPa, 0.9316 m³ at 15 °C and 101.325 kPa, 32.96 standard
+// cubic feet at 60 °F and 14.696 psia [calc]; the trade's "about 0.9 m³ per
+// tonne per unit" agrees (common practice, no source). Worked case [calc]:
+// IV 133 → 70 on the feed basis takes 2482.2 mol, 5.004 kg or 55.64 m³
+// (0 °C, 101.325 kPa) per tonne, 4.976 kg if the final value is measured on
+// the product. Saturating triolein to tristearin takes 6.830 kg per tonne
+// and adds 0.683 % to the mass [calc]. Plants add purge and dissolution
+// losses and correct for gas purity: both are inputs.
+//
+// The heat of hydrogenation is nearly constant per double bond
+// (calorimetry of Rogers and co-workers, J. Chem. Soc. Faraday Trans. 1
+// 74:2868, 1978), about −105 to −125 kJ per mol C=C [memory]; the default
+// is the middle, −115, and overridable. The liquid oil's heat capacity
+// rises with temperature (liquid trielaidin: cp = 1.327 + 0.002529·T[K]
+// J/(g·K), fitted over 320–360 K, the default model); the adiabatic rise
+// integrates it. The trade quotes 1.6–1.7 °C per iodine-value unit (common
+// practice, no source); it is not a test oracle.
 //
 // Two iodine-value conventions exist because the oil gains the mass of the
 // hydrogen it takes up: a final iodine value can be stated per 100 g of the
@@ -27,8 +53,8 @@
 //
 // # Forecast and calibration
 //
-// The kinetic part (kinetics.go, forecast.go, presets.go, fit.go) predicts
-// what a catalyst makes of an oil. [Forecast] takes a feed profile, a target
+// The kinetic part (catalyst.go, network.go, trajectory.go, forecast.go,
+// presets.go, the fit_*.go files) predicts what a catalyst makes of an oil. [Forecast] takes a feed profile, a target
 // (final iodine value, iodine-value drop or hydrogen per tonne) and a
 // [Catalyst], and returns the product profile, its trans and saturated
 // shares, the hydrogen taken up and a path table; [Presets] lists documented
@@ -38,7 +64,9 @@
 // The model is the consecutive pseudo-first-order scheme 18:3 → 18:2 →
 // 18:1 → 18:0 with rate constants k1, k2, k3 (Bailey 1949; Albright 1965),
 // written with the selectivities S_Ln = k1/k2 and S_R = k2/k3, plus a
-// compact cis/trans network (DOMAIN §8): a share φ of the monoenes formed
+// compact cis/trans network of our own built on the half-hydrogenated
+// surface intermediate through which double bonds isomerise (cis → trans,
+// positional shifts) during hardening: a share φ of the monoenes formed
 // from all-cis dienes (and of the dienes formed from trienes) leaves the
 // catalyst as trans; cis monoenes isomerise to trans at rate ι·k3 and back
 // at (ι/K)·k3, relaxing towards trans:cis = K; trans monoenes saturate at
@@ -91,8 +119,8 @@
 // this network makes common. With the trans network off the
 // C18 part reduces to the Bateman closed form, which the tests use to check
 // the general solver. The iodine value falls strictly along the path, so a
-// target is found by a bracketed, safeguarded Newton root finder on τ (the
-// derivative dIV/dτ is exact) to 1e-9 iodine-value units. Iodine values
+// target is found by the shared bracketed root finder taking Newton steps
+// on τ (the derivative dIV/dτ is exact) to 1e-9 iodine-value units. Iodine values
 // along the path are those of the oil itself, per 100 g of oil — for the
 // product the product basis of [ProductBasis], what a laboratory measures
 // and what chem.IodineValue computes from the composition; the hydrogen
@@ -104,10 +132,22 @@
 // [pub: J. Japan Oil Chem. Soc. 20:10 (1971)]. The model being linear, the
 // pools recombine exactly to the overall product.
 //
+// Published check data: soybean oil over nickel at 175 °C and 15 psi H2
+// reaches a trans 18:1 peak of about 46 % near IV 70, and at IV about 40
+// carries 28–32 % trans and 42–46 % stearic acid (List, Jackson, Eller &
+// Adlof, JAOCS 84:609, 2007), which the nickel_selective preset meets. The
+// equilibrium trans:cis ratio of internal 18:1 is about 2:1 to 3:1, and
+// nickel forms about 0.5–1.0 trans per iodine-value unit lost [memory];
+// higher hydrogen pressure lowers trans for every metal (comparative
+// Ni/Pd/Pt studies in JAOCS [memory]). Regulatory readings: a fat at or
+// below IV 4 counts as fully hydrogenated, not partially (FDA declaratory
+// order, 80 FR 34650, 2015); industrial trans fat is limited to 2 g per
+// 100 g of fat (Commission Regulation (EU) 2019/649; WHO REPLACE).
+//
 // The package is pure: value types and deterministic functions, standard
 // library and gonum only. Errors are *chem.Error values whose field paths
-// use the names listed on [HydrogenRequest], [ForecastRequest] and
-// [FitRequest].
+// name the request's fields ([HydrogenDemandInput], [ForecastInput],
+// [FitInput]).
 //
 // Caution: the results are estimates for planning. Hydrogen is extremely
 // flammable and forms explosive mixtures with air over a wide range;

@@ -304,7 +304,7 @@ func targetPath(k TargetKind) []any {
 }
 
 // fullSaturationKgPerTonne is the H2 that saturates every double bond of a
-// feed of iodine value feedIV, kg per tonne of feed (DOMAIN §7: 0.07943 kg
+// feed of iodine value feedIV, kg per tonne of feed (the hardening package documentation: 0.07943 kg
 // per tonne per iodine-value unit).
 func fullSaturationKgPerTonne(feedIV float64) float64 {
 	return feedIV / iodineValuePerMolPerGram * gramsPerTonne * chem.MolarMassH2 / 1000
@@ -383,7 +383,7 @@ func prepareFeed(cat *chem.Catalogue, feed, sn2 *chem.Profile, feedField string)
 }
 
 // checkSn2 enforces b_i ≤ 3x_i: an acid cannot fill more of the sn-2
-// position than a third of all its chains (DOMAIN §9, 1,3-random-2-random).
+// position than a third of all its chains (the melting package documentation, 1,3-random-2-random).
 func checkSn2(net *network, x0 []float64, sn2 *chem.Profile) error {
 	index := make(map[string]int, len(net.acids))
 	for i, a := range net.acids {
@@ -408,7 +408,7 @@ func checkSn2(net *network, x0 []float64, sn2 *chem.Profile) error {
 
 // positionalPools returns the sn-2 composition b and the sn-1,3 composition
 // a = (3x − b)/2 in network order, as mole fractions of their own position
-// [Vander Wal 1960; Coleman 1961; DOMAIN §9]. Hardening barely moves acids
+// [Vander Wal 1960; Coleman 1961; the melting package documentation]. Hardening barely moves acids
 // between positions [pub: J. Japan Oil Chem. Soc. 20:10 (1971)], so each
 // pool is hardened with the same τ; because the model is linear, the
 // recombined (2a + b)/3 is exactly the overall product.

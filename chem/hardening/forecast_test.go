@@ -134,7 +134,7 @@ func TestForecastPathInvariants(t *testing.T) {
 			// Requirement: target hit within 0.01 IV.
 			require.InDelta(t, 40, res.FinalIodineValue, 0.01)
 			require.InDelta(t, 40, res.FinalIodineValue, 1e-8, "solver tolerance is 1e-9")
-			// DOMAIN §4: soy-like exact IV 132.98 [calc].
+			// the chem package documentation: soy-like exact IV 132.98 [calc].
 			require.InDelta(t, 132.98, res.FeedIodineValue, 0.005)
 
 			step := (40 - res.FeedIodineValue) / float64(MaxPathPoints-1)
@@ -179,7 +179,7 @@ func TestForecastPathInvariants(t *testing.T) {
 			require.InDelta(t, hres.ChemicalPerTonne.Kg, res.Path[len(res.Path)-1].HydrogenKgPerTonne, 1e-12)
 
 			// The hydrogen is also exact for the composition: moles of C=C
-			// removed per tonne of feed (DOMAIN §7 stoichiometry).
+			// removed per tonne of feed (the hardening package documentation stoichiometry).
 			dFeed, dProd := feed.MeanDoubleBonds(), res.Product.MeanDoubleBonds()
 			molPerGramFeed := (dFeed - dProd) / (feed.MeanAcidMolarMass() + chem.GlycerolBackboneIncrement/3)
 			require.InEpsilon(t, molPerGramFeed*1e6*chem.MolarMassH2/1000, res.Hydrogen.HydrogenKgPerTonne, 1e-12)
@@ -289,7 +289,7 @@ func TestNickelSelectivePresetBands(t *testing.T) {
 				require.InDelta(t, c.Expected, got, c.Tolerance, "%s (source: %s)", c.Quantity, c.Source)
 			}
 			// Specific isomerisation index 0.5–1.0 % trans per IV unit for
-			// nickel [memory; DOMAIN §8] — generous, recalled range.
+			// nickel [memory] — generous, recalled range.
 			require.InDelta(t, 0.75, q["trans_per_iv_to_peak"], 0.25)
 		})
 	}
@@ -312,7 +312,7 @@ func TestForecastTargetsAgree(t *testing.T) {
 		}
 	}
 	require.InDelta(t, byIV.Hydrogen.HydrogenKgPerTonne, byH2.Hydrogen.HydrogenKgPerTonne, 1e-10)
-	// DOMAIN §7 worked case: IV 133 → 70 with the final IV measured on the
+	// the hardening package documentation worked case: IV 133 → 70 with the final IV measured on the
 	// product takes 4.976 kg/t [calc]; our feed is 132.98, so 0.02 IV less
 	// (0.07943 kg/t per IV unit), i.e. 4.9744 kg/t.
 	require.InDelta(t, 4.976-0.02*0.07943, byIV.Hydrogen.HydrogenKgPerTonne, 0.001)
@@ -349,7 +349,7 @@ func TestForecastFlags(t *testing.T) {
 // TestForecastSn2Pools: the sn-2 and sn-1,3 pools recombine to the overall
 // product, (2a + b)/3 in mole terms, because the model is linear and both
 // pools share τ. The sn-2 composition follows the seed-oil estimate of
-// DOMAIN §9: saturated and C20+ acids out of sn-2, the unsaturated C18
+// the melting package documentation: saturated and C20+ acids out of sn-2, the unsaturated C18
 // acids filling it in proportion.
 func TestForecastSn2Pools(t *testing.T) {
 	cat := chem.NewCatalogue()
@@ -543,7 +543,7 @@ func TestNetworkCoversCatalogue(t *testing.T) {
 }
 
 // TestPresets checks the presets' bookkeeping and the ordering the
-// literature gives them [memory; DOMAIN §8]: platinum forms the least trans
+// literature gives them [memory]: platinum forms the least trans
 // and palladium the most; non-selective nickel forms more saturates and
 // less trans than selective nickel; copper keeps more linoleic acid once
 // linolenic acid is down.

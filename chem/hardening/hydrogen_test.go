@@ -13,7 +13,7 @@ import (
 )
 
 // scfM3 is one standard cubic foot, m³, as given with the check values in
-// DOMAIN.md §7 (0.3048^3, international foot). Typed here rather than taken
+// the hardening package documentation (0.3048^3, international foot). Typed here rather than taken
 // from CubicFootM3 so the test does not check the package against itself.
 const scfM3 = 0.028316846592
 
@@ -53,7 +53,7 @@ type referenceFile struct {
 	} `json:"cases"`
 }
 
-// TestHydrogenDemandReferenceCases checks the DOMAIN.md §7 figures kept in
+// TestHydrogenDemandReferenceCases checks the figures of the hardening package documentation kept in
 // testdata/hardening/hydrogen_cases.json; source and tolerance sit beside
 // each value in the file.
 func TestHydrogenDemandReferenceCases(t *testing.T) {
@@ -103,15 +103,15 @@ func TestHydrogenDemandReferenceCases(t *testing.T) {
 
 // TestHydrogenMolPerTonnePerIodineValue checks the exported constant.
 func TestHydrogenMolPerTonnePerIodineValue(t *testing.T) {
-	// DOMAIN.md §7: 10^4 / 253.80894 = 39.3997 mol C=C per tonne per IV unit [calc];
+	// the hardening package documentation: 10^4 / 253.80894 = 39.3997 mol C=C per tonne per IV unit [calc];
 	// tolerance half a unit in the last digit.
 	require.InDelta(t, 39.3997, HydrogenMolPerTonnePerIodineValue, 0.00005)
-	// DOMAIN.md §2: M(I2) = 253.80894 g/mol [calc from IUPAC/CIAAW 2021];
+	// the chem package documentation: M(I2) = 253.80894 g/mol [calc from IUPAC/CIAAW 2021];
 	// the constant must follow chem's atomic weights, not a retyped number.
 	require.InDelta(t, 253.80894, chem.MolarMassI2, 1e-9)
 }
 
-// TestCubicFoot checks the exported cubic foot against the figure DOMAIN.md §7
+// TestCubicFoot checks the exported cubic foot against the figure the hardening package documentation
 // states (1 scf = 0.028316846592 m³); the international foot is exactly
 // 0.3048 m, so the tolerance is rounding only.
 func TestCubicFoot(t *testing.T) {
@@ -199,7 +199,7 @@ func TestCustomGasReference(t *testing.T) {
 }
 
 // TestTradeRuleOfThumb: "about 0.9 m³ per tonne per IV unit" is common
-// practice, no source (DOMAIN.md §7 [practice]); it should agree within 6 %
+// practice, no source (the hardening package documentation [practice]); it should agree within 6 %
 // at every named reference state.
 func TestTradeRuleOfThumb(t *testing.T) {
 	for _, kind := range namedGasReferences {
@@ -216,10 +216,10 @@ func TestTradeRuleOfThumb(t *testing.T) {
 // value is computed from the formula: 3 C=C per molecule of C57H104O6.
 func TestTrioleinToTristearin(t *testing.T) {
 	trioleinMolarMass := 57*chem.AtomicMassC + 104*chem.AtomicMassH + 6*chem.AtomicMassO
-	// DOMAIN.md §2: triolein 885.453 g/mol [calc]; tolerance 0.0005.
+	// the chem package documentation: triolein 885.453 g/mol [calc]; tolerance 0.0005.
 	require.InDelta(t, 885.453, trioleinMolarMass, 0.0005)
 	trioleinIV := 100 * chem.MolarMassI2 * 3 / trioleinMolarMass
-	// DOMAIN.md §4: triolein IV 85.99 [calc]; tolerance 0.005.
+	// the chem package documentation: triolein IV 85.99 [calc]; tolerance 0.005.
 	require.InDelta(t, 85.99, trioleinIV, 0.005)
 
 	for _, basis := range []IodineValueBasis{FeedBasis, ProductBasis} {
@@ -227,11 +227,11 @@ func TestTrioleinToTristearin(t *testing.T) {
 			req := NewHydrogenRequest(trioleinIV, FinalIodineValue(0), 1000, 150)
 			req.Basis = basis
 			res := mustDemand(t, req)
-			// DOMAIN.md §7: 6.830 kg H2 per tonne [calc]; tolerance 0.0005.
+			// the hardening package documentation: 6.830 kg H2 per tonne [calc]; tolerance 0.0005.
 			require.InDelta(t, 6.830, res.ChemicalPerTonne.Kg, 0.0005)
-			// DOMAIN.md §7: product mass +0.683 % [calc]; tolerance 0.0005 %.
+			// the hardening package documentation: product mass +0.683 % [calc]; tolerance 0.0005 %.
 			require.InDelta(t, 0.683, 100*res.Headline().ProductMassGainFraction, 0.0005)
-			// DOMAIN.md §2: tristearin 891.501 g/mol [calc]; the mass gain
+			// the chem package documentation: tristearin 891.501 g/mol [calc]; the mass gain
 			// must equal the molar-mass ratio minus one; tolerance 1e-6
 			// (the two molar masses are printed to 0.001 g/mol).
 			require.InDelta(t, 891.501/885.453-1, res.Headline().ProductMassGainFraction, 1e-6)
@@ -259,7 +259,7 @@ func TestIodineValueConventions(t *testing.T) {
 			}
 
 			// Mass balance: C=C left per gram of product, times 100·M(I2),
-			// is the product-basis IV (definition, DOMAIN.md §4); relative 1e-12.
+			// is the product-basis IV (definition, the chem package documentation); relative 1e-12.
 			for _, s := range []Saturation{feed, product} {
 				leftPerGramFeed := feedIV/(100*chem.MolarMassI2) - s.HydrogenMolPerTonne/1e6
 				productPerGramFeed := 1 + s.HydrogenMolPerTonne/1e6*chem.MolarMassH2
@@ -363,7 +363,7 @@ func TestHeatRelease(t *testing.T) {
 		req := NewHydrogenRequest(133, FinalIodineValue(70), 20000, 150)
 		req.Heat.HeatCapacity = HeatCapacity{InterceptJPerGK: 2.5, SlopeJPerGK2: 0}
 		res := mustDemand(t, req)
-		// DOMAIN.md §7: rise per IV unit = 39.40 × |ΔH| / (1000 × cp) K [calc];
+		// the hardening package documentation: rise per IV unit = 39.40 × |ΔH| / (1000 × cp) K [calc];
 		// 63 IV units, ΔH −115 kJ/mol, cp 2.5 kJ/(kg·K) → 114.18 K. Tolerance
 		// 0.01 K covers the rounding of 39.40 (39.3997).
 		require.InDelta(t, 63*39.40*115/(1000*2.5), res.Heat.AdiabaticRiseK, 0.01)
@@ -383,7 +383,7 @@ func TestHeatRelease(t *testing.T) {
 		require.InEpsilon(t, res.Heat.KJPerTonne*20, res.Heat.KJPerBatch, 1e-12)
 		require.InEpsilon(t, res.Heat.KJPerTonne/3600, res.Heat.KWhPerTonne, 1e-12)
 		require.InEpsilon(t, res.Heat.KJPerBatch/3600, res.Heat.KWhPerBatch, 1e-12)
-		// DOMAIN.md §7 worked case, 2482.2 mol/t × 115 kJ/mol = 285 453 kJ/t
+		// the hardening package documentation worked case, 2482.2 mol/t × 115 kJ/mol = 285 453 kJ/t
 		// [calc from the worked case]; tolerance 10 kJ/t for the rounding of 2482.2.
 		require.InDelta(t, 2482.2*115, res.Heat.KJPerTonne, 10)
 	})
@@ -426,7 +426,7 @@ func TestHeatRelease(t *testing.T) {
 		// [pub: "Investigation of the thermal behavior of trielaidin between
 		// 10 K and 360 K"]; at 340 K it is 2.18686. Tolerance 1e-9.
 		require.InDelta(t, 1.327+0.002529*340, cp.At(340), 1e-9)
-		// DOMAIN.md §7 trend: about 2.0 kJ/(kg·K) near 25 °C and 2.5 at
+		// the hardening package documentation trend: about 2.0 kJ/(kg·K) near 25 °C and 2.5 at
 		// 180–200 °C [memory, "about"]; tolerance 5 % and 2 %.
 		require.InEpsilon(t, 2.0, cp.At(298.15), 0.05)
 		require.InEpsilon(t, 2.5, cp.At(453.15), 0.02)

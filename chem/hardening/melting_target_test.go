@@ -13,7 +13,7 @@ import (
 
 func soyProfile(t *testing.T, cat *chem.Catalogue) *chem.Profile {
 	t.Helper()
-	// The soy-like check vector of DOMAIN.md §3 (a test vector, not a
+	// The soy-like check vector of the chem package documentation (a test vector, not a
 	// measured oil).
 	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, []chem.Entry{
 		{Acid: "16:0", Percent: 10.5}, {Acid: "16:1 c9", Percent: 0.1}, {Acid: "18:0", Percent: 4.0},

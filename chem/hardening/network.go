@@ -290,7 +290,7 @@ func (net *network) evolve(x0 []float64, tau float64, x []float64) {
 // iodineValue is the exact iodine value of the triacylglycerol oil whose
 // chains have mole fractions x (any positive scale): 100·M(I2)·Σx·d /
 // (Σx·M_acid + (M_glycerol − 3 M_H2O)/3), the same formula as
-// chem.IodineValue with chem.MaterialTAG [DOMAIN §4, exact stoichiometric
+// chem.IodineValue with chem.MaterialTAG [the chem package documentation, exact stoichiometric
 // iodine value].
 func (net *network) iodineValue(x []float64) float64 {
 	var sx, sd, sm float64

@@ -59,7 +59,7 @@ func Presets() []Preset {
 				"oil hardened over nickel at 175 °C and 15 psi H2: trans 18:1 peaks at 46 ± 4 % near " +
 				"iodine value 70 ± 6, and at iodine value 40 trans is 30 ± 4 % and stearic acid " +
 				"44 ± 4 % [pub: List, Jackson, Eller & Adlof, JAOCS 84:609 (2007)], starting from the " +
-				"soy-like check vector of DOMAIN §3. The preset gives a trans 18:1 peak of 46.2 % at " +
+				"soy-like check vector of the chem package documentation. The preset gives a trans 18:1 peak of 46.2 % at " +
 				"iodine value 68.8, and at iodine value 40 30.0 % trans with 42.1 % stearic acid; it " +
 				"forms 0.72 % trans per iodine-value unit up to the peak, inside the 0.5–1.0 recalled " +
 				"for nickel [memory]. Stearic acid sits 1.9 points under the band centre because, " +

@@ -16,7 +16,7 @@ const (
 	Positional Distribution = iota + 1
 	// FullRandom places every acid on every position with its overall mole
 	// fraction: P(i,j,k) = x_i·x_j·x_k. It fits chemically interesterified
-	// fats and is a fair default for tallow (DOMAIN §9).
+	// fats and is a fair default for tallow (the melting package documentation).
 	FullRandom
 	// ExplicitTAGs marks a fat given as a list of TAG species
 	// ([PrepareTAGs]) rather than built from a profile. It is not an option
@@ -110,7 +110,7 @@ type Species struct {
 	// MoleFraction among all TAG species.
 	MoleFraction float64
 	// MolarMass is 92.094 + Σ acids − 3 × 18.015 g/mol (glycerol plus the
-	// three acids less the water of esterification; DOMAIN §9).
+	// three acids less the water of esterification; the melting package documentation).
 	MolarMass float64
 	// idx are the component indices of Outer1, Middle, Outer2.
 	idx [3]int32

@@ -16,7 +16,7 @@ const (
 	// Alpha (α) is the least stable, hexagonal form, obtained by quenching.
 	Alpha Polymorph = iota + 1
 	// BetaPrime (β′) is the orthorhombic-perpendicular form. Unstabilised
-	// hardened and palm-based fats crystallise mostly in it (DOMAIN §10), so
+	// hardened and palm-based fats crystallise mostly in it (the melting package documentation), so
 	// it is the default.
 	BetaPrime
 	// Beta (β) is the triclinic-parallel, most stable form of most TAGs;
@@ -25,8 +25,8 @@ const (
 )
 
 // DefaultPolymorph is the form used when a request names none: β′, the form
-// unstabilised SFC of hardened and palm-based fats mostly reflects (DOMAIN
-// §10) and the stable form of lauric fats. One polymorph serves every fat
+// unstabilised SFC of hardened and palm-based fats mostly reflects (see the
+// package documentation) and the stable form of lauric fats. One polymorph serves every fat
 // class; the validation in testdata/melting/VALIDATION.md was run with it.
 const DefaultPolymorph = BetaPrime
 

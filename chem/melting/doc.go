@@ -4,54 +4,95 @@
 // the mixture, and from that the solid fat content (SFC) curve, the slip
 // melting point and the clear point.
 //
-// The chain of models, each documented where it is implemented:
+// Its entry points take a request in its own shape: [Melt] (a profile or a
+// TAG list, the model options, optional measurements), [Calibrate] and
+// [ResolveModel] (the options alone, for callers that nest them). Beneath
+// them are the typed engine: [Prepare] and [PrepareTAGs] build a reusable
+// [Fat], [MeltProfile] and [CalibrateProfile] compute from a read profile,
+// [Mixture] holds the equilibrium components.
 //
-//  1. Composition ([TAGComposition], composition.go): the profile's acids are
-//     placed on glycerol by full random distribution or by the
-//     1,3-random-2-random rule (Vander Wal 1960; Coleman 1961), with the sn-2
-//     composition measured, supplied as a separate pool, or estimated by a
-//     documented rule ([SN2SeedOil], [SN2Palm], [SN2Enrichment]).
-//     Regio-isomers are lumped: sn-1 and sn-3 are taken as equivalent.
-//     Species below a mole-fraction floor are pooled by melting point.
-//  2. Pure-TAG properties ([PureTAGProperties], properties.go): enthalpy and
-//     entropy of fusion each linear in the total acyl carbon number, with
-//     terms for the sn-2 and the outer chain-length mismatch, odd chains and
-//     cis-18:1, trans-18:1, 18:2 and 18:3 chains — the published structure
-//     of Wesdorp's correlation (L.H. Wesdorp, thesis, Delft 1990; restated
-//     in Marangoni & Wesdorp, Structure and Properties of Fat Crystal
-//     Networks, 2nd ed.), except that cis-18:1 chains at sn-2 and at sn-1/3
-//     have separate terms (our extension, documented on
-//     [PolymorphCoefficients]).
-//     The coefficients are our own fit to testdata/melting/pure_tag_thermo.csv
-//     (see fit_test.go and testdata/melting/fit_coefficients.json); measured
-//     values override the correlation for the TAGs that have them.
-//  3. Solid–liquid equilibrium (sle.go, families.go): an ideal liquid and
-//     ideal solubility of each solid (Hildebrand / Schröder–van Laar), with
-//     one of three solid models: multiple pure solid phases (a eutectic
-//     system, solved exactly), one ideal solid solution (Rachford–Rice), or
-//     — the default — partial miscibility: species grouped into families of
+// # From fatty acids to triacylglycerols (composition.go, sn2.go)
+//
+// Full random distribution: P(i,j,k) = x_i x_j x_k (chemically
+// interesterified fats; a fair default for tallow). The 1,3-random-2-random
+// distribution (Vander Wal 1960; Coleman 1961): sn-2 has its own
+// composition b, sn-1 and sn-3 share a = (3x − b)/2, which needs b_i ≤ 3x_i,
+// and P(i,j,k) = a_i b_j a_k. Regio-isomers are lumped (sn-1 and sn-3
+// equivalent). A species weighs 92.094 + Σ acids − 3 × 18.015 g/mol.
+//
+// The sn-2 composition, when not measured (pancreatic lipase analysis), is
+// estimated: the seed-oil rule keeps saturated and C20+ acids out of sn-2
+// and lets the unsaturated C18 acids fill it in proportion to their amounts
+// (if they are less than a third of all chains, all of them go to sn-2 and
+// the other acids fill the rest); the palm rule lets saturated and C20+
+// acids compete with a selectivity calibrated to a published palm-oil sn-2
+// analysis ([PalmSN2Selectivity]); enrichment factors place acids by
+// relative preference. Species below a mole-fraction floor are pooled by
+// melting point within their family (components.go).
+//
+// # Pure-TAG properties (correlation.go)
+//
+// Enthalpy and entropy of fusion are each linear in the total acyl carbon
+// number, with terms for the sn-2 and the outer chain-length mismatch, odd
+// chains and cis-18:1, trans-18:1, 18:2 and 18:3 chains — the published
+// structure of Wesdorp's correlation (L.H. Wesdorp, thesis, Delft 1990;
+// restated in Marangoni & Wesdorp, Structure and Properties of Fat Crystal
+// Networks, 2nd ed.), except that cis-18:1 chains at sn-2 and at sn-1/3 have
+// separate terms (our extension, on [PolymorphCoefficients]). The
+// coefficients are our own fit to testdata/melting/pure_tag_thermo.csv
+// (fit_test.go, testdata/melting/fit_coefficients.json; `go generate`
+// refits them into coefficients_gen.go); measured values override the
+// correlation for the TAGs that have them. Polymorph matters: α < β′ < β in
+// melting point; unstabilised SFC of hardened and palm-based fats mostly
+// reflects β′, tempered cocoa-butter-type fats the stable β form.
+//
+// # Solid–liquid equilibrium (sle.go, eutectic.go, solid_solution.go,
+// families.go)
+//
+// An ideal liquid and the ideal solubility of a pure solid (Hildebrand;
+// Schröder–van Laar): x_sat(T) = exp[−(ΔH/R)(1/T − 1/T_m)], R =
+// 8.314462618 J/(mol·K). Three solid models:
+//
+//   - multiple pure solid phases (a eutectic system): the liquid fraction L
+//     solves Σ min(z_i/L, x_i,sat) = 1, piecewise in L with breakpoints
+//     z_i/x_i,sat, so sorting them gives L exactly;
+//   - one ideal solid solution: K_i = 1/x_i,sat and the Rachford–Rice
+//     equation Σ z_i(K_i − 1)/(1 + β(K_i − 1)) = 0 for the solid fraction β;
+//   - the default, partial miscibility: species grouped into families of
 //     near-isomorphous TAGs (same unsaturation, total acyl carbons in one
 //     6-carbon band), each family an ideal solid solution, the families
 //     mutually immiscible (Michelsen's convex formulation of multiphase
 //     ideal-solution equilibrium, solved by a joint Newton method with a
 //     bracketed nested iteration as fallback).
-//  4. Melting results ([Melt], melt.go): the SFC curve, the slip melting
-//     point found by root finding on the monotone SFC(T), the clear point,
-//     SFC at 37 °C, the main species, and warnings. [SlipMeltingPoint] is the
-//     cheap entry point for root finders such as a hardening-to-target
-//     search; [Prepare] gives a reusable [Fat] for repeated queries.
-//  5. Calibration ([Calibrate], calibrate.go): a temperature shift of all
-//     melting points and a slip threshold fitted to a fat's measured SFC
-//     points (AOCS Cd 16b-93, ISO 8292-1) and/or slip melting point
-//     (AOCS Cc 3-25, ISO 6321), returned as a value [Melt] accepts.
 //
-// Defaults, and the validation that chose them, are on [DefaultOptions] and
-// in testdata/melting/VALIDATION.md. The results are estimates: real fats
+// The SFC is 100 × Σ solid_i M_i / Σ z_i M_i (mass %). The equations are
+// checked on a three-TAG case recomputed from first principles [calc]: z =
+// {0.05, 0.25, 0.70}, T_m = {339.15, 310.15, 278.15} K, ΔH = {171, 140,
+// 100} kJ/mol, equal masses, give solid fractions 0.2960, 0.2685, 0.0493,
+// 0.0004 and 0 at 10, 20, 30, 50 and 60 °C in the eutectic model and
+// 0.5585, 0.1476 and 0.0020 at 10, 30 and 50 °C as one ideal solid solution.
+//
+// # Melting results (melt.go, options.go, calibrate.go)
+//
+// The methods the results stand in for: slip melting point, the
+// temperature at which a fat column rises in an open capillary on slow
+// heating after 16 h at 4–10 °C (AOCS Cc 3-25, ISO 6321); clear point, where
+// the fat becomes completely clear (AOCS Cc 1-25); SFC by pulsed NMR
+// (AOCS Cd 16b-93, ISO 8292-1), with a tempering procedure for
+// cocoa-butter-type fats. The model reads the slip melting point where its
+// SFC falls to a threshold (the trade places it at about 3–5 % SFC, common
+// practice, no source; [DefaultSlipThresholdPercent] and its calibration),
+// and the clear point where the SFC reaches zero. [Calibrate] fits a
+// temperature shift of all melting points and a slip threshold to a fat's
+// measured SFC points and/or slip melting point.
+//
+// Defaults, and the validation that chose them, are on [Options] and in
+// testdata/melting/VALIDATION.md. The results are estimates: real fats
 // crystallise out of equilibrium, their mixed crystals are not ideal, some
 // TAG pairs form compounds, and their measured SFC depends on the tempering
 // procedure.
 //
 // The package is pure: value types and deterministic functions that import
 // only the standard library, gonum and lipidsvc/chem. Errors are *chem.Error
-// values; field paths use the snake_case names given on [Options].
+// values whose field paths name the request's fields ([MeltingInput]).
 package melting

@@ -28,19 +28,19 @@ func profileOf(t testing.TB, lines ...acidPct) *chem.Profile {
 	return p
 }
 
-// palmLike is DOMAIN.md §3's palm-like test vector (IV 52).
+// palmLike is the palm-like check vector of the chem package documentation (IV 52).
 func palmLike(t testing.TB) *chem.Profile {
 	return profileOf(t, acidPct{"12:0", 0.2}, acidPct{"14:0", 1.0}, acidPct{"16:0", 44.0}, acidPct{"16:1", 0.2},
 		acidPct{"18:0", 4.5}, acidPct{"18:1", 39.2}, acidPct{"18:2", 10.1}, acidPct{"18:3", 0.3}, acidPct{"20:0", 0.4}, acidPct{"20:1", 0.1})
 }
 
-// soyLike is DOMAIN.md §3's soy-like test vector.
+// soyLike is the soy-like check vector of the chem package documentation.
 func soyLike(t testing.TB) *chem.Profile {
 	return profileOf(t, acidPct{"16:0", 10.5}, acidPct{"16:1", 0.1}, acidPct{"18:0", 4.0}, acidPct{"18:1", 23.0},
 		acidPct{"18:2", 53.7}, acidPct{"18:3", 7.6}, acidPct{"20:0", 0.4}, acidPct{"20:1", 0.3}, acidPct{"22:0", 0.4})
 }
 
-// TestToyCheck reproduces DOMAIN.md §10's three-TAG check [calc] with both
+// TestToyCheck reproduces the three-TAG check of the melting package documentation [calc] with both
 // solid models to 1e-4.
 func TestToyCheck(t *testing.T) {
 	m, err := NewMixture([]Component{
@@ -60,7 +60,7 @@ func TestToyCheck(t *testing.T) {
 	} {
 		sfc, err := m.SolidFatContent(c.model, c.tC, 0)
 		require.NoError(t, err)
-		require.InDelta(t, c.want, sfc/100, 1e-4, "%s at %g °C (DOMAIN §10 [calc])", c.model, c.tC)
+		require.InDelta(t, c.want, sfc/100, 1e-4, "%s at %g °C [calc]", c.model, c.tC)
 	}
 	// The clear points bound the curves: solid just below, none at or above.
 	for _, model := range []SolidModel{MultiplePureSolids, IdealSolidSolution} {
@@ -86,7 +86,7 @@ func TestAnchors(t *testing.T) {
 		return a
 	}
 	s, e, p, o := acid("18:0"), acid("18:1 t9"), acid("16:0"), acid("18:1 c9")
-	const sssMass, eeeMass = 891.501, 885.453 // g/mol, DOMAIN §2 [calc]
+	const sssMass, eeeMass = 891.501, 885.453 // g/mol, the chem package documentation [calc]
 	cases := []struct {
 		name       string
 		tag        [3]*chem.FattyAcid
@@ -164,7 +164,7 @@ func TestCompositionSumsAndPositions(t *testing.T) {
 		require.InDelta(t, 1, sum(c.SN2), 1e-12)
 		require.InDelta(t, 1, sum(c.SN13), 1e-12)
 		for i := range c.Total {
-			// x = (2a + b)/3 (1,3-random-2-random bookkeeping, DOMAIN §9).
+			// x = (2a + b)/3 (1,3-random-2-random bookkeeping, the melting package documentation).
 			require.InDelta(t, c.Total[i], (2*c.SN13[i]+c.SN2[i])/3, 1e-12)
 			require.LessOrEqual(t, c.SN2[i], 3*c.Total[i]+1e-15)
 		}
@@ -175,7 +175,7 @@ func TestCompositionSumsAndPositions(t *testing.T) {
 	}
 }
 
-// TestSeedOilRule follows DOMAIN §9: saturated acids stay out of sn-2 when
+// TestSeedOilRule follows the melting package documentation: saturated acids stay out of sn-2 when
 // the unsaturated C18 acids are at least a third of the chains; otherwise
 // all unsaturated C18 go to sn-2 and the rest fill it.
 func TestSeedOilRule(t *testing.T) {
@@ -230,12 +230,12 @@ func TestPalmRuleReproducesPublishedSN2(t *testing.T) {
 		}
 	}
 	require.InDelta(t, 0.13, sat, 0.01, "saturated share of sn-2 [Ong & Goh 2002 Table 2]")
-	// DOMAIN §9 [memory]: palm oil has about 5 % tripalmitin.
+	// the melting package documentation [memory]: palm oil has about 5 % tripalmitin.
 	c, err = TAGComposition(palmLike(t), CompositionOptions{SN2: SN2Palm})
 	require.NoError(t, err)
 	for _, s := range c.Species {
 		if s.ShortName() == "PPP" {
-			require.InDelta(t, 0.05, s.MoleFraction, 0.015, "PPP ≈ 5 % [memory, DOMAIN §9]")
+			require.InDelta(t, 0.05, s.MoleFraction, 0.015, "PPP ≈ 5 % [memory]")
 		}
 	}
 }
@@ -482,7 +482,7 @@ func TestFastExp(t *testing.T) {
 
 // TestFamiliesModelLimits checks the families solver against the two exact
 // models it generalises: with every component its own family it is the
-// eutectic model, with one family the ideal solid solution. The DOMAIN §10
+// eutectic model, with one family the ideal solid solution. The melting package documentation's
 // toy mixture (three TAGs) and a wider random mixture are used, with both
 // the joint-Newton fast path and the bracketed nested iteration.
 func TestFamiliesModelLimits(t *testing.T) {
@@ -635,7 +635,7 @@ func TestPrepareGroupsByFamilyRule(t *testing.T) {
 // sn-2: Ong & Goh, Food Nutr. Bull. 23(1):11, 2002, Table 2). A palm-like
 // fat under that rule gets a warning pointing at sn2_estimate; the palm rule
 // and a seed oil do not. The message's "about 11 K low" is checked here on
-// DOMAIN §3's palm-like vector.
+// the palm-like check vector of the chem package documentation.
 func TestSeedOilRuleWarnsOnPalmLikeFat(t *testing.T) {
 	has := func(ws []chem.Warning) (chem.Warning, bool) {
 		for _, w := range ws {
@@ -666,7 +666,7 @@ func TestSeedOilRuleWarnsOnPalmLikeFat(t *testing.T) {
 
 // TestSuppliedSN2ClipKeepsTheBalance: a supplied sn-2 composition slightly
 // above the limit b_i ≤ 3·x_i is clipped to it, and the pools still rebuild
-// the profile, x = (2a + b)/3 (DOMAIN §9; first principles). Before the fix
+// the profile, x = (2a + b)/3 (the melting package documentation; first principles). Before the fix
 // the clipped acid was rescaled back over its limit and the rebuilt profile
 // drifted by 1e-3.
 func TestSuppliedSN2ClipKeepsTheBalance(t *testing.T) {

@@ -10,7 +10,7 @@ import (
 
 // DefaultSlipThresholdPercent is the solid fat content (mass %) at which the
 // slip melting point is read. The trade places the slip melting point where
-// the SFC falls to about 3–5 % [practice, DOMAIN §10]; with the default model
+// the SFC falls to about 3–5 % [practice]; with the default model
 // and polymorph 3 %, the low end of that range, gave the smallest mean error
 // on the validation fats (testdata/melting/VALIDATION.md lists 3, 4 and 5 %
 // for every model and polymorph). Calibrate a fat to fit its own threshold.

@@ -21,12 +21,12 @@ const (
 	// Σ_i min(z_i/L, x_i,sat) = 1; the solid amount of i is
 	// max(0, z_i − L·x_i,sat). The left side is piecewise in L with
 	// breakpoints z_i/x_i,sat, so sorting the breakpoints gives L exactly
-	// (DOMAIN §10). It never pools species (see Options.withDefaults).
+	// (the melting package documentation). It never pools species (see Options.withDefaults).
 	MultiplePureSolids SolidModel = iota + 1
 	// IdealSolidSolution puts all TAGs in one ideal solid solution of the
 	// chosen polymorph: K_i = x_solid/x_liquid = 1/x_i,sat, and the solid
 	// mole fraction β solves the Rachford–Rice equation
-	// Σ z_i(K_i − 1)/(1 + β(K_i − 1)) = 0 (DOMAIN §10).
+	// Σ z_i(K_i − 1)/(1 + β(K_i − 1)) = 0 (the melting package documentation).
 	IdealSolidSolution
 	// SolidSolutionFamilies is partial solid miscibility: TAGs of nearly the
 	// same shape form mixed crystals, others crystallise apart. Species are
@@ -208,7 +208,7 @@ func (m *Mixture) newWorkspace() *workspace {
 }
 
 // SolidFatContent is the solid fat content (mass %) at temperatureC:
-// 100·Σ solid_i·M_i / Σ z_i·M_i (DOMAIN §10). maxIterations caps the
+// 100·Σ solid_i·M_i / Σ z_i·M_i (the melting package documentation). maxIterations caps the
 // Rachford–Rice iteration of the ideal solid solution (≤ 0 means
 // DefaultMaxIterations).
 // It returns a KindInvalid error for an unknown model or a temperature

@@ -13,7 +13,7 @@ import (
 type SN2Estimate int
 
 const (
-	// SN2SeedOil is the seed-oil rule (DOMAIN §9): saturated acids and C20+
+	// SN2SeedOil is the seed-oil rule (the melting package documentation): saturated acids and C20+
 	// acids stay out of sn-2; the unsaturated C18 acids fill it in
 	// proportion to their amounts; if they are less than a third of all
 	// chains they all go to sn-2 and the other acids fill the rest in
@@ -35,7 +35,7 @@ const (
 	SN2Enrichment
 )
 
-// DefaultSN2Estimate is [SN2SeedOil], DOMAIN §9's rule for seed oils; choose
+// DefaultSN2Estimate is [SN2SeedOil], the seed-oil rule of the package documentation; choose
 // SN2Palm for palm oil and its fractions.
 const DefaultSN2Estimate = SN2SeedOil
 
@@ -58,7 +58,7 @@ func (e SN2Estimate) String() string {
 // PalmLikePalmiticMoleFraction is the palmitic acid share (mole fraction of
 // the chains) from which the seed-oil rule warns that the fat looks like
 // palm oil or one of its fractions. Our choice between the two groups:
-// Codex CXS 210 puts palm oil at 39.3–47.5 % palmitic acid (DOMAIN §11);
+// Codex CXS 210 puts palm oil at 39.3–47.5 % palmitic acid;
 // the palm olein reference material has 39.66 % (Tarmizi, Siew & Kuntom,
 // J. Oleo Sci. 57:275, 2008, abstract); the seed oils of the same standard
 // stay below about 27 % (cottonseed, the highest) [memory].
@@ -69,7 +69,7 @@ const PalmLikePalmiticMoleFraction = 0.35
 // a palm oil of about 50 % saturated acids carries about 13 % saturated acids
 // at sn-2, as reported for palm oil (sn-2: 16:0 11 %, 18:0 2 %, 18:1 65 %,
 // 18:2 22 %) [Ong A.S.H. & Goh S.H., Food Nutr. Bull. 23(1):11 (2002),
-// Table 2]; DOMAIN §9 recalls 10–13 % palmitic acid at sn-2 [memory].
+// Table 2]; 10–13 % palmitic acid at sn-2 is the figure commonly recalled [memory].
 // TestPalmRuleReproducesPublishedSN2 checks the calibration.
 const PalmSN2Selectivity = 0.14
 

@@ -143,8 +143,8 @@ func runValidation(t testing.TB, cases []validationCase) []configResult {
 	return out
 }
 
-// chooseDefaults applies the documented rule: the polymorph is β′ (DOMAIN
-// §10: unstabilised SFC of hardened and palm-based fats reflects β′; lauric
+// chooseDefaults applies the documented rule: the polymorph is β′ (the
+// package documentation: unstabilised SFC of hardened and palm-based fats reflects β′; lauric
 // fats are β′-stable too); among the solid models and the thresholds of the
 // trade's 3–5 % range [practice], the smallest mean absolute slip-point
 // error against the published targets wins. The [memory] palm SFC values
@@ -244,7 +244,7 @@ func validationMarkdown(t testing.TB, cases, reported []validationCase, results 
 
 	w("\n## Defaults and how they were chosen\n\n")
 	w("Rule (chooseDefaults in validation_test.go): the polymorph is β′, because unstabilised SFC of hardened and\n")
-	w("palm-based fats mostly reflects β′ (DOMAIN §10) and lauric fats are β′-stable too; among the three solid models\n")
+	w("palm-based fats mostly reflects β′ (the melting package documentation) and lauric fats are β′-stable too; among the three solid models\n")
 	w("and the slip thresholds of the trade's 3–5 %% range [practice], the smallest mean absolute slip-point error\n")
 	w("against the published targets wins. The [memory] palm SFC values are reported beside each configuration but do\n")
 	w("not decide. (The rule used before this table also dropped configurations whose palm SFC missed a [memory]\n")
