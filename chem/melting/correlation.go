@@ -1,5 +1,12 @@
 package melting
 
+// The fitted coefficients (coefficients_gen.go, with their data and
+// residuals in testdata/melting) and the validation report are generated
+// by the tests that check them; go generate ./... rewrites both.
+//
+//go:generate go test -run ^TestFitCoefficients$ -update .
+//go:generate go test -run ^TestValidation$ -update .
+
 import (
 	"math"
 
