@@ -141,17 +141,11 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		Acids:    make([]AcidResultBody, len(p.Acids)),
 		Warnings: toWarnings(p.Warnings),
 	}
-	out.AOCS = AOCSIodineValue{Applies: p.AOCSApplies}
+	out.AOCS = AOCSIodineValue{Applies: p.AOCSApplies, Note: p.AOCSNote}
 	if p.AOCSApplies {
-		set := "triacylglycerol"
-		if p.Material == chem.MaterialFreeAcid {
-			set = "free_fatty_acid"
-		}
+		set := p.AOCSFactorSet
 		out.AOCS.FactorSet = &set
 		out.AOCS.IodineValue = optional(round(p.IodineValueAOCS, v))
-		out.AOCS.Note = aocsNotes[set]
-	} else {
-		out.AOCS.Note = "AOCS Cd 1c-85 defines no factors for methyl esters; use iodine_value"
 	}
 	for i, a := range p.Acids {
 		r := AcidResultBody{
@@ -168,10 +162,4 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		out.Acids[i] = r
 	}
 	return out
-}
-
-// aocsNotes are the notes of the AOCS Cd 1c-85 figure, by factor set.
-var aocsNotes = map[string]string{
-	"triacylglycerol": "AOCS Cd 1c-85 with its triacylglycerol factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %)",
-	"free_fatty_acid": "AOCS Cd 1c-85 with its free_fatty_acid factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %)",
 }

@@ -176,7 +176,6 @@ func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 
 func fromForecast(a *hardening.ForecastAnswer) ForecastResponse {
 	r := a.ForecastResult
-	ref, _ := hardening.StandardGasReference(hardening.GasRef0C1atm)
 	var preset *string
 	if a.Preset != "" {
 		preset = &a.Preset
@@ -191,7 +190,7 @@ func fromForecast(a *hardening.ForecastAnswer) ForecastResponse {
 		Hydrogen: ForecastHydrogen{
 			HydrogenKgPerTonne:       r.Hydrogen.HydrogenKgPerTonne,
 			HydrogenMolPerTonne:      r.Hydrogen.HydrogenMolPerTonne,
-			HydrogenVolumeM3PerTonne: r.Hydrogen.HydrogenMolPerTonne * ref.MolarVolumeM3PerMol(),
+			HydrogenVolumeM3PerTonne: r.HydrogenVolumeM3PerTonne,
 			IodineValueDropFeedBasis: r.Hydrogen.IodineValueDropFeedBasis,
 			ProductMassGainPercent:   100 * r.Hydrogen.ProductMassGainFraction,
 		},

@@ -122,9 +122,13 @@ type Properties struct {
 	// IodineValue is the exact (stoichiometric) iodine value, g I2/100 g.
 	IodineValue float64
 	// IodineValueAOCS is the AOCS Cd 1c-85 calculated iodine value; valid
-	// only when AOCSApplies.
+	// only when AOCSApplies. AOCSFactorSet names the factors used
+	// ("triacylglycerol" or "free_fatty_acid"), and AOCSNote says what the
+	// figure is or why there is none.
 	IodineValueAOCS float64
 	AOCSApplies     bool
+	AOCSFactorSet   string
+	AOCSNote        string
 	// SaponificationValue is exact, mg KOH/g.
 	SaponificationValue float64
 	// Mean molar masses, g/mol: free acid, methyl ester, and the material
@@ -244,6 +248,16 @@ func PropertiesOf(p *Profile, m Material) Properties {
 			ignored = append(ignored, fmt.Sprintf("%s (%.3g %% as FAME weight)", c.Acid.ID, fame[i]))
 		}
 		out.Acids[i] = r
+	}
+	if out.AOCSApplies {
+		out.AOCSFactorSet = "triacylglycerol"
+		if m == MaterialFreeAcid {
+			out.AOCSFactorSet = "free_fatty_acid"
+		}
+		out.AOCSNote = "AOCS Cd 1c-85 with its " + out.AOCSFactorSet +
+			" factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %)"
+	} else {
+		out.AOCSNote = "AOCS Cd 1c-85 defines no factors for methyl esters; use iodine_value"
 	}
 	switch {
 	case !out.AOCSApplies:

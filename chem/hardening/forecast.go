@@ -159,6 +159,10 @@ type ForecastResult struct {
 	// FinalIodineValue on the product basis. It is exact for the model's
 	// composition: the mass gain of the oil is the mass of H2 added.
 	Hydrogen Saturation
+	// HydrogenVolumeM3PerTonne is Hydrogen's amount as a volume at 0 °C
+	// and 101.325 kPa (the default gas reference state), m³ per tonne of
+	// feed.
+	HydrogenVolumeM3PerTonne float64
 	// Sn2Product and Sn13Product are the hardened sn-2 and sn-1,3 pools (the
 	// latter per sn-1,3 chain, i.e. the mean of the two outer positions);
 	// nil unless the request gave an sn-2 composition.
@@ -272,6 +276,8 @@ func ForecastOf(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (
 	res.TransPercent = props.Sums.Trans
 	res.SaturatedPercent = props.Sums.Saturated
 	res.Hydrogen = saturationProductBasis(feedIV, res.FinalIodineValue)
+	ref, _ := StandardGasReference(DefaultGasReferenceKind)
+	res.HydrogenVolumeM3PerTonne = res.Hydrogen.HydrogenMolPerTonne * ref.MolarVolumeM3PerMol()
 	res.Flags = Flags{
 		TransAboveLimit: res.TransPercent > TransLimitPercent,
 		// The root finder lands within ivAcceptTolerance of its target, on
