@@ -94,7 +94,8 @@ func handleProperties(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			return err
 		}
 		rec.Calculation("properties")
-		return respond(c, http.StatusOK, fromProperties(props))
+		out := fromProperties(props)
+		return respond(c, http.StatusOK, &out)
 	}
 }
 
@@ -119,7 +120,7 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 			MethylEsterGPerMol:     round(p.MeanMethylEsterMolarMass, m),
 			TriacylglycerolGPerMol: round(p.MeanTAGMolarMass, m),
 		},
-		MeanDoubleBondsPerChain: round(p.MeanDoubleBondsPerChain, sum),
+		MeanDoubleBondsPerChain: round(p.MeanDoubleBondsPerChain, decimalsIndex),
 		UnidentifiedPercent:     round(p.UnidentifiedPercent, sum),
 		Sums: CompositionSums{
 			SaturatedPercent:               round(p.Sums.Saturated, sum),
@@ -135,8 +136,8 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		},
 		Indices: IndicesBody{
 			CalculatedOxidizability: round(p.Indices.Cox, sum),
-			AtherogenicIndex:        roundPtr(p.Indices.Atherogenic, sum),
-			ThrombogenicIndex:       roundPtr(p.Indices.Thrombogenic, sum),
+			AtherogenicIndex:        roundPtr(p.Indices.Atherogenic, decimalsIndex),
+			ThrombogenicIndex:       roundPtr(p.Indices.Thrombogenic, decimalsIndex),
 		},
 		Acids:    make([]AcidResultBody, len(p.Acids)),
 		Warnings: toWarnings(p.Warnings),

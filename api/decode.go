@@ -111,7 +111,13 @@ func respond(c echo.Context, status int, v any) error {
 			responseBuffers.Put(bp)
 		}
 	}()
-	body, err := segjson.Append((*bp)[:0], v, segjson.SortMapKeys)
+	var body []byte
+	var err error
+	if a, ok := v.(jsonAppender); ok {
+		body, err = a.AppendJSON((*bp)[:0])
+	} else {
+		body, err = segjson.Append((*bp)[:0], v, segjson.SortMapKeys)
+	}
 	if err != nil {
 		return fmt.Errorf("encoding response: %w", err)
 	}
@@ -122,6 +128,12 @@ func respond(c echo.Context, status int, v any) error {
 	c.Response().WriteHeader(status)
 	_, err = c.Response().Write(body)
 	return err
+}
+
+// jsonAppender is a response that encodes itself (a hot path written by
+// hand).
+type jsonAppender interface {
+	AppendJSON(b []byte) ([]byte, error)
 }
 
 // responseBuffers recycles encoding buffers; one larger than

@@ -12,8 +12,9 @@ import "math"
 //     print two decimals).
 //   - Mean molar masses: 0.001 g/mol, the precision the atomic weights
 //     they are computed from carry.
-//   - Composition sums, ratios, the mean number of double bonds and the
-//     indices: 0.01.
+//   - Composition sums and ratios and the calculated oxidizability: 0.01.
+//   - The atherogenic and thrombogenic indices and the mean number of
+//     double bonds per chain: 0.001 (they are read around 0.1–2).
 //   - A profile's own lines (percent, mole percent, FAME weight percent):
 //     1e-7 percentage points, which is full precision for any laboratory
 //     figure and lets a client recombine pools or convert bases exactly.
@@ -21,6 +22,7 @@ const (
 	decimalsValue     = 2
 	decimalsMolarMass = 3
 	decimalsSum       = 2
+	decimalsIndex     = 3
 	decimalsLine      = 7
 )
 

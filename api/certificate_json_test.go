@@ -1,0 +1,76 @@
+package api
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"testing"
+	"unicode/utf8"
+
+	"github.com/stretchr/testify/require"
+
+	"lipidsvc/chem"
+)
+
+// stdJSON encodes v with encoding/json, without HTML escaping, as the
+// reference the hand-written encoder must equal.
+func stdJSON(t testing.TB, v any) []byte {
+	t.Helper()
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	require.NoError(t, enc.Encode(v))
+	return bytes.TrimSuffix(buf.Bytes(), []byte("\n"))
+}
+
+func TestPropertiesJSONMatchesEncoder(t *testing.T) {
+	cat := chem.NewCatalogue()
+	for _, in := range []chem.PropertiesInput{
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 10.5}, {Acid: "18:1", Percent: 23}, {Acid: "18:2", Percent: 53.7},
+			{Acid: "18:3", Percent: 7.6}, {Acid: "18:0", Percent: 4}, {Acid: "others", Percent: 1.2}}}},
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "EPA", Percent: 50}, {Acid: "DHA", Percent: 50}}}, Material: "methyl_esters"},
+		{Profile: &chem.ProfileInput{Basis: "mole_percent", Acids: []chem.Entry{{Acid: "stearic", Percent: 100}}}, Material: "free_fatty_acids"},
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "18:1 t9", Percent: 60}, {Acid: "18:2 c9,t11", Percent: 40.3}}}},
+	} {
+		p, err := chem.ComputeProperties(cat, in)
+		require.NoError(t, err)
+		r := fromProperties(p)
+		got, err := r.AppendJSON(nil)
+		require.NoError(t, err)
+		require.Equal(t, string(stdJSON(t, r.plain())), string(got))
+	}
+	// Edge values: tiny and huge numbers, nil lists, escapes.
+	tiny := 3e-9
+	r := PropertiesResponse{IodineValue: 1e22, SaponificationValue: -0.0000005, Sums: CompositionSums{N6ToN3Ratio: &tiny},
+		AOCS: AOCSIodineValue{Note: "quote \" back \\ tab \t nl \n bell \x07 \u2028 é ω <&>"},
+		Warnings: []WarningBody{{Code: "c", Message: "m\x1f"}}}
+	got, err := r.AppendJSON(nil)
+	require.NoError(t, err)
+	require.Equal(t, string(stdJSON(t, r.plain())), string(got))
+	r.IodineValue = math.NaN()
+	_, err = r.AppendJSON(nil)
+	require.ErrorIs(t, err, errNonFinite)
+}
+
+// plain is r as a type without the hand-written encoder, so that
+// encoding/json encodes it by reflection.
+func (r PropertiesResponse) plain() any {
+	type noMethods PropertiesResponse
+	return noMethods(r)
+}
+
+func FuzzJSONString(f *testing.F) {
+	for _, s := range []string{"", "abc", "\"\\", "\x00\x1f\x7f", "é\u2028\u2029", "\xff\xfe", "a\xc3"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		got := appendJSONString(nil, s)
+		want := stdJSON(t, s)
+		if !bytes.Equal(got, want) {
+			t.Fatalf("%q: got %s, want %s", s, got, want)
+		}
+		if !utf8.Valid(got) {
+			t.Fatalf("invalid UTF-8 out of %q", s)
+		}
+	})
+}
