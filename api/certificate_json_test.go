@@ -42,7 +42,7 @@ func TestPropertiesJSONMatchesEncoder(t *testing.T) {
 	// Edge values: tiny and huge numbers, nil lists, escapes.
 	tiny := 3e-9
 	r := PropertiesResponse{IodineValue: 1e22, SaponificationValue: -0.0000005, Sums: CompositionSums{N6ToN3Ratio: &tiny},
-		AOCS: AOCSIodineValue{Note: "quote \" back \\ tab \t nl \n bell \x07 \u2028 é ω <&>"},
+		AOCS:     AOCSIodineValue{Note: "quote \" back \\ tab \t nl \n bell \x07 \u2028 é ω <&>"},
 		Warnings: []WarningBody{{Code: "c", Message: "m\x1f"}}}
 	got, err := r.AppendJSON(nil)
 	require.NoError(t, err)
