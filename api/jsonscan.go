@@ -123,7 +123,23 @@ func (s *scanner) literal(word string) error {
 
 // number checks the RFC 8259 number grammar.
 func (s *scanner) number() error {
-	b, i := s.b, s.i
+	end, ok := JSONNumberEnd(s.b, s.i)
+	if !ok {
+		return s.fail(scanClean)
+	}
+	s.i = end
+	return nil
+}
+
+// JSONNumberEnd reads a number by the grammar of RFC 8259 from b[i:] and
+// returns the index after it; ok is false (and end the offending byte)
+// when the bytes there are not a number.
+func JSONNumberEnd(b []byte, i int) (end int, ok bool) {
+	digits := func() {
+		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
+			i++
+		}
+	}
 	if i < len(b) && b[i] == '-' {
 		i++
 	}
@@ -131,20 +147,16 @@ func (s *scanner) number() error {
 	case i < len(b) && b[i] == '0':
 		i++
 	case i < len(b) && b[i] >= '1' && b[i] <= '9':
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
+		digits()
 	default:
-		return s.fail(scanClean)
+		return i, false
 	}
 	if i < len(b) && b[i] == '.' {
 		i++
 		if i >= len(b) || b[i] < '0' || b[i] > '9' {
-			return s.fail(scanClean)
+			return i, false
 		}
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
+		digits()
 	}
 	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
 		i++
@@ -152,14 +164,11 @@ func (s *scanner) number() error {
 			i++
 		}
 		if i >= len(b) || b[i] < '0' || b[i] > '9' {
-			return s.fail(scanClean)
+			return i, false
 		}
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
+		digits()
 	}
-	s.i = i
-	return nil
+	return i, true
 }
 
 // str reads a string; plain reports whether its bytes are its value

@@ -5,6 +5,8 @@ import (
 	"math"
 	"strconv"
 	"unicode/utf8"
+
+	"lipidsvc/api"
 )
 
 // str reads a string and returns its raw bytes (plain: no escapes, so they
@@ -139,46 +141,13 @@ func (v *validator) checkString(n *schemaNode, s []byte, plain bool) {
 
 // number reads a number by the JSON grammar and checks it.
 func (v *validator) number(n *schemaNode) error {
-	b, start := v.b, v.i
-	i := start
-	if b[i] == '-' {
-		i++
-	}
-	switch {
-	case i < len(b) && b[i] == '0':
-		i++
-	case i < len(b) && b[i] >= '1' && b[i] <= '9':
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
-	default:
-		v.i = i
+	start := v.i
+	end, ok := api.JSONNumberEnd(v.b, start)
+	v.i = end
+	if !ok {
 		return v.syntax("invalid number")
 	}
-	if i < len(b) && b[i] == '.' {
-		i++
-		if i >= len(b) || b[i] < '0' || b[i] > '9' {
-			v.i = i
-			return v.syntax("invalid number")
-		}
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
-	}
-	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
-		i++
-		if i < len(b) && (b[i] == '+' || b[i] == '-') {
-			i++
-		}
-		if i >= len(b) || b[i] < '0' || b[i] > '9' {
-			v.i = i
-			return v.syntax("invalid number")
-		}
-		for i < len(b) && b[i] >= '0' && b[i] <= '9' {
-			i++
-		}
-	}
-	v.i = i
+	b, i := v.b, end
 	if n.any {
 		return nil
 	}
