@@ -18,12 +18,19 @@ import "math"
 //   - A profile's own lines (percent, mole percent, FAME weight percent):
 //     1e-7 percentage points, which is full precision for any laboratory
 //     figure and lets a client recombine pools or convert bases exactly.
+//   - Melting: temperatures (slip melting point, clear point, a species'
+//     melting point) to 0.1 °C and solid fat contents to 0.1 point, the
+//     resolution of the methods they stand for (AOCS Cc 3-25, AOCS Cd
+//     16b-93); their errors against measurements likewise; a species' share
+//     to 0.01 %. The temperatures of a curve are echoed as requested. A
+//     calibration keeps full precision: it is an input to later requests.
 const (
 	decimalsValue     = 2
 	decimalsMolarMass = 3
 	decimalsSum       = 2
 	decimalsIndex     = 3
 	decimalsLine      = 7
+	decimalsMelting   = 1
 )
 
 var pow10 = [...]float64{1, 10, 100, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8}

@@ -208,8 +208,8 @@ func fromForecast(a *hardening.ForecastAnswer) ForecastResponse {
 	if st := a.SlipTarget; st != nil {
 		out.MeltingTarget = &MeltingTargetBody{
 			TargetSlipMeltingPointC: st.TargetSlipMeltingPointC,
-			SlipMeltingPointC:       st.SlipMeltingPointC,
-			FeedSlipMeltingPointC:   finiteOrNil(st.FeedSlipMeltingPointC),
+			SlipMeltingPointC:       round(st.SlipMeltingPointC, decimalsMelting),
+			FeedSlipMeltingPointC:   roundPtr(finiteOrNil(st.FeedSlipMeltingPointC), decimalsMelting),
 			IodineValue:             st.IodineValue,
 		}
 	}

@@ -207,11 +207,11 @@ func (b *CalibrateRequest) input() melting.CalibrationInput {
 func fromMeltingError(e melting.CalibrationError, hasSlip bool) MeltingError {
 	out := MeltingError{SFCPoints: e.SFCPoints}
 	if e.SFCPoints > 0 {
-		out.SFCRMSErrorPercent = finiteOrNil(e.SFCRMSErrorPercent)
-		out.SFCMaxAbsErrorPercent = finiteOrNil(e.SFCMaxAbsErrorPercent)
+		out.SFCRMSErrorPercent = roundPtr(finiteOrNil(e.SFCRMSErrorPercent), decimalsMelting)
+		out.SFCMaxAbsErrorPercent = roundPtr(finiteOrNil(e.SFCMaxAbsErrorPercent), decimalsMelting)
 	}
 	if hasSlip {
-		out.SlipErrorK = finiteOrNil(e.SlipErrorK)
+		out.SlipErrorK = roundPtr(finiteOrNil(e.SlipErrorK), decimalsMelting)
 	}
 	return out
 }
@@ -258,11 +258,11 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 func fromMelting(a *melting.MeltingAnswer) MeltingResponse {
 	r := a.Result
 	out := MeltingResponse{
-		SolidFatAt37CPercent: r.SFCAt37CPercent,
+		SolidFatAt37CPercent: round(r.SFCAt37CPercent, decimalsMelting),
 		SpeciesCount:         r.SpeciesCount,
 		ComponentCount:       r.ComponentCount,
 		PooledSpecies:        r.PooledSpecies,
-		PooledMassPercent:    r.PooledMassPercent,
+		PooledMassPercent:    round(r.PooledMassPercent, decimalsValue),
 		MeasuredOverrides:    r.MeasuredOverrides,
 		Assumptions:          r.Assumptions,
 		Parameters: MeltingParameters{
@@ -279,25 +279,26 @@ func fromMelting(a *melting.MeltingAnswer) MeltingResponse {
 		Warnings: toWarnings(a.Warnings),
 	}
 	if r.SlipMeltingPointDefined {
-		out.SlipMeltingPointC = optional(r.SlipMeltingPointC)
+		out.SlipMeltingPointC = optional(round(r.SlipMeltingPointC, decimalsMelting))
 	}
 	if r.ClearPointDefined {
-		out.ClearPointC = optional(r.ClearPointC)
+		out.ClearPointC = optional(round(r.ClearPointC, decimalsMelting))
 	}
 	if r.Parameters.SN2Estimate != 0 {
 		s := r.Parameters.SN2Estimate.String()
 		out.Parameters.Sn2Estimate = &s
 	}
 	for _, p := range r.Curve {
-		out.Curve = append(out.Curve, SFCPoint(p))
+		out.Curve = append(out.Curve, SFCPoint{TemperatureC: p.TemperatureC, SolidFatPercent: round(p.SolidFatPercent, decimalsMelting)})
 	}
 	for _, p := range r.ReportingPoints {
-		out.ReportingPoints = append(out.ReportingPoints, SFCPoint(p))
+		out.ReportingPoints = append(out.ReportingPoints, SFCPoint{TemperatureC: p.TemperatureC, SolidFatPercent: round(p.SolidFatPercent, decimalsMelting)})
 	}
 	for _, s := range r.MainSpecies {
 		out.MainSpecies = append(out.MainSpecies, MainSpecies{
-			TAG: s.Label, ShortName: s.ShortName, MolePercent: s.MolePercent, MassPercent: s.MassPercent,
-			MeltingPointC: finiteOrNil(s.MeltingPointC), MeltingPointMeasured: s.MeltingPointMeasured,
+			TAG: s.Label, ShortName: s.ShortName,
+			MolePercent: round(s.MolePercent, decimalsValue), MassPercent: round(s.MassPercent, decimalsValue),
+			MeltingPointC: roundPtr(finiteOrNil(s.MeltingPointC), decimalsMelting), MeltingPointMeasured: s.MeltingPointMeasured,
 		})
 	}
 	if cmp := a.Comparison; cmp != nil {
