@@ -74,7 +74,8 @@ type CalibrateRequest struct {
 	Polymorph            string               `json:"polymorph,omitempty"`
 	SolidModel           string               `json:"solid_model,omitempty"`
 	SlipThresholdPercent *float64             `json:"slip_threshold_percent,omitempty"`
-	Measured             *MeltingMeasurements `json:"measured"`
+	Measured             *MeltingMeasurements `json:"measured,omitempty"`
+	Fats                 []CalibrationFatBody `json:"fats,omitempty"`
 }
 
 // MeltingError compares predictions with measurements.
@@ -83,6 +84,24 @@ type MeltingError struct {
 	SFCRMSErrorPercent    *float64 `json:"sfc_rms_error_percent"`
 	SFCMaxAbsErrorPercent *float64 `json:"sfc_max_abs_error_percent"`
 	SlipErrorK            *float64 `json:"slip_error_k"`
+	SlipPoints            int      `json:"slip_points"`
+}
+
+// CalibrationFatBody is one fat of a calibration library.
+type CalibrationFatBody struct {
+	Profile              *ProfileBody         `json:"profile"`
+	Sn2Profile           *ProfileBody         `json:"sn2_profile,omitempty"`
+	Distribution         string               `json:"distribution,omitempty"`
+	Sn2Estimate          string               `json:"sn2_estimate,omitempty"`
+	Sn2EnrichmentFactors []EnrichmentFactor   `json:"sn2_enrichment_factors,omitempty"`
+	Measured             *MeltingMeasurements `json:"measured"`
+}
+
+// FatFitBody is how a library's calibration fits one of its fats.
+type FatFitBody struct {
+	Before      MeltingError  `json:"before"`
+	After       MeltingError  `json:"after"`
+	LeaveOneOut *MeltingError `json:"leave_one_out"`
 }
 
 // MainSpecies is one of the largest TAG species.
@@ -130,6 +149,8 @@ type CalibrateResponse struct {
 	Calibration MeltingCalibration `json:"calibration"`
 	Before      MeltingError       `json:"before"`
 	After       MeltingError       `json:"after"`
+	LeaveOneOut *MeltingError      `json:"leave_one_out,omitempty"`
+	Fats        []FatFitBody       `json:"fats,omitempty"`
 	Warnings    []WarningBody      `json:"warnings"`
 }
 
@@ -192,25 +213,39 @@ func (b *MeltingRequest) input() melting.MeltingInput {
 
 // input copies the request into the science's shape.
 func (b *CalibrateRequest) input() melting.CalibrationInput {
-	return melting.CalibrationInput{
-		Profile: b.Profile.input(), Sn2Profile: b.Sn2Profile.input(),
-		Distribution: b.Distribution, Sn2Estimate: b.Sn2Estimate,
-		Sn2EnrichmentFactors: factorsInput(b.Sn2EnrichmentFactors),
-		Polymorph:            b.Polymorph, SolidModel: b.SolidModel,
+	in := melting.CalibrationInput{
+		CalibrationFat: melting.CalibrationFat{
+			Profile: b.Profile.input(), Sn2Profile: b.Sn2Profile.input(),
+			Distribution: b.Distribution, Sn2Estimate: b.Sn2Estimate,
+			Sn2EnrichmentFactors: factorsInput(b.Sn2EnrichmentFactors),
+			Measured:             b.Measured.input(),
+		},
+		Polymorph: b.Polymorph, SolidModel: b.SolidModel,
 		SlipThresholdPercent: b.SlipThresholdPercent,
-		Measured:             b.Measured.input(),
 	}
+	if b.Fats != nil {
+		in.Fats = make([]melting.CalibrationFat, len(b.Fats))
+		for i, f := range b.Fats {
+			in.Fats[i] = melting.CalibrationFat{
+				Profile: f.Profile.input(), Sn2Profile: f.Sn2Profile.input(),
+				Distribution: f.Distribution, Sn2Estimate: f.Sn2Estimate,
+				Sn2EnrichmentFactors: factorsInput(f.Sn2EnrichmentFactors),
+				Measured:             f.Measured.input(),
+			}
+		}
+	}
+	return in
 }
 
 // fromMeltingError converts a comparison with measurements; the slip error
 // is null without a measured slip melting point or when the model has none.
-func fromMeltingError(e melting.CalibrationError, hasSlip bool) MeltingError {
-	out := MeltingError{SFCPoints: e.SFCPoints}
+func fromMeltingError(e melting.CalibrationError) MeltingError {
+	out := MeltingError{SFCPoints: e.SFCPoints, SlipPoints: e.SlipPoints}
 	if e.SFCPoints > 0 {
 		out.SFCRMSErrorPercent = roundPtr(finiteOrNil(e.SFCRMSErrorPercent), decimalsMelting)
 		out.SFCMaxAbsErrorPercent = roundPtr(finiteOrNil(e.SFCMaxAbsErrorPercent), decimalsMelting)
 	}
-	if hasSlip {
+	if e.SlipPoints > 0 {
 		out.SlipErrorK = roundPtr(finiteOrNil(e.SlipErrorK), decimalsMelting)
 	}
 	return out
@@ -242,15 +277,30 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 			return err
 		}
 		rec.Calculation("melting_calibration")
-		return respond(c, http.StatusOK, CalibrateResponse{
+		out := CalibrateResponse{
 			Calibration: MeltingCalibration{
 				TemperatureShiftK:    rep.Calibration.TemperatureShiftK,
 				SlipThresholdPercent: rep.Calibration.SlipThresholdPercent,
 			},
-			Before:   fromMeltingError(rep.Before, rep.HasSlipMeltingPoint),
-			After:    fromMeltingError(rep.After, rep.HasSlipMeltingPoint),
+			Before:   fromMeltingError(rep.Before),
+			After:    fromMeltingError(rep.After),
 			Warnings: toWarnings(rep.Warnings),
-		})
+		}
+		if rep.Library {
+			if rep.LeaveOneOutDefined {
+				loo := fromMeltingError(rep.LeaveOneOut)
+				out.LeaveOneOut = &loo
+			}
+			out.Fats = make([]FatFitBody, len(rep.Fats))
+			for i, f := range rep.Fats {
+				out.Fats[i] = FatFitBody{Before: fromMeltingError(f.Before), After: fromMeltingError(f.After)}
+				if f.LeaveOneOutDefined {
+					loo := fromMeltingError(f.LeaveOneOut)
+					out.Fats[i].LeaveOneOut = &loo
+				}
+			}
+		}
+		return respond(c, http.StatusOK, out)
 	}
 }
 
@@ -302,7 +352,7 @@ func fromMelting(a *melting.MeltingAnswer) MeltingResponse {
 		})
 	}
 	if cmp := a.Comparison; cmp != nil {
-		e := fromMeltingError(cmp.CalibrationError, cmp.HasSlipMeltingPoint)
+		e := fromMeltingError(cmp.CalibrationError)
 		out.Comparison = &e
 	}
 	return out

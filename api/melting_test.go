@@ -378,3 +378,31 @@ func TestSpeciesWithoutMeltingPoint(t *testing.T) {
 	require.Nil(t, got.MainSpecies[0].MeltingPointC)
 	require.Nil(t, got.ClearPointC)
 }
+
+// TestCalibrateLibrary: a plant's library of fats is calibrated together;
+// the answer pools the errors and gives each fat's leave-one-out error.
+func TestCalibrateLibrary(t *testing.T) {
+	body := `{"polymorph":"beta_prime","fats":[
+	  {"profile":` + palmLike + `,"sn2_estimate":"palm_rule","measured":{"sfc_points":[{"temperature_c":20,"solid_fat_percent":26},{"temperature_c":30,"solid_fat_percent":8}],"slip_melting_point_c":36}},
+	  {"profile":` + pkoBelitz + `,"measured":{"slip_melting_point_c":27.5}},
+	  {"profile":` + palmLike + `,"sn2_estimate":"palm_rule","measured":{"sfc_points":[{"temperature_c":10,"solid_fat_percent":52}]}}]}`
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate", body: body})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got := decode[api.CalibrateResponse](t, rec)
+	require.Len(t, got.Fats, 3)
+	require.NotNil(t, got.LeaveOneOut)
+	require.Equal(t, 3, got.After.SFCPoints)
+	require.Equal(t, 2, got.After.SlipPoints)
+	for i, f := range got.Fats {
+		require.NotNil(t, f.LeaveOneOut, "fat %d", i)
+	}
+	// One fat and a library together, or a fat without measurements, are refused.
+	for _, c := range []struct{ body, pointer string }{
+		{`{"profile":` + palmLike + `,"measured":{"slip_melting_point_c":36},"fats":[{"profile":` + palmLike + `,"measured":{"slip_melting_point_c":36}}]}`, ""},
+		{`{"fats":[{"profile":` + palmLike + `,"measured":{"slip_melting_point_c":36}},{"profile":` + palmLike + `}]}`, "/fats/1/measured"},
+	} {
+		rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate", body: c.body})
+		require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
+		require.Equal(t, c.pointer, decode[api.Problem](t, rec).Errors[0].Pointer)
+	}
+}

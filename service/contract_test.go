@@ -48,7 +48,8 @@ func seedBodies(t testing.TB) map[string][]string {
 		"POST /v1/melting": {read("load", "melting.json"),
 			`{"triacylglycerols":[{"sn1":"16:0","sn2":"18:1","sn3":"16:0","mole_percent":100}],"temperatures_c":[10,20],"main_species_count":3,"measured":{"sfc_points":[{"temperature_c":20,"solid_fat_percent":30}],"slip_melting_point_c":35}}`,
 			`{"profile":` + soy + `,"sn2_enrichment_factors":[{"acid":"18:1 c9","factor":1}],"solid_model":"ideal_solid_solution","slip_threshold_percent":4}`},
-		"POST /v1/melting/calibrate": {`{"profile":` + soy + `,"distribution":"full_random","measured":{"slip_melting_point_c":20}}`},
+		"POST /v1/melting/calibrate": {`{"profile":` + soy + `,"distribution":"full_random","measured":{"slip_melting_point_c":20}}`,
+			`{"polymorph":"beta","fats":[{"profile":` + soy + `,"sn2_estimate":"palm_rule","measured":{"sfc_points":[{"temperature_c":10,"solid_fat_percent":5}]}},{"profile":` + soy + `,"measured":{"slip_melting_point_c":20}}]}`},
 	}
 }
 

@@ -29,8 +29,13 @@ type CalibrationError struct {
 	SFCRMSErrorPercent    float64
 	SFCMaxAbsErrorPercent float64
 	// SlipErrorK is predicted minus measured slip melting point, K (zero
-	// without a measured slip point; NaN when the model has none).
+	// without a measured slip point; NaN when the model has none). Over
+	// several fats it is SlipRMSErrorK.
 	SlipErrorK float64
+	// SlipPoints counts the measured slip melting points compared, and
+	// SlipRMSErrorK is their root-mean-square error, K.
+	SlipPoints    int
+	SlipRMSErrorK float64
 }
 
 // CalibrationReport is the result of [Calibrate].
@@ -50,22 +55,12 @@ const (
 )
 
 // CalibrateProfile fits a correction of the melting model to one fat's
-// measurements:
-//
-//   - With SFC points, the temperature shift ΔT (added to every TAG melting
-//     point, within ±MaxCalibrationShiftK) minimises the sum of squared SFC
-//     errors: a 0.25 K scan refined by golden-section search. If a slip
-//     melting point is also given, the slip threshold becomes the SFC the
-//     shifted model predicts at that temperature (clamped to 0.5–15 %).
-//   - With only a slip melting point, the threshold stays that of opt and ΔT
-//     is found by root finding so that the predicted slip melting point
-//     equals the measured one (the slip point rises monotonically with ΔT).
-//
-// Any calibration already in opt is ignored; the report gives the error
-// before and after. Errors are KindInvalid *chem.Error values for bad input
-// and the context's error if ctx ends. Measurements the model cannot match
-// within the limits are not an error: the parameter stays at its limit and
-// a WarnCalibrationLimit warning says so.
+// measurements; it is [CalibrateFats] for a library of one (see there for
+// the method). Any calibration already in opt is ignored; the report gives
+// the error before and after. Errors are KindInvalid *chem.Error values for
+// bad input and the context's error if ctx ends. Measurements the model
+// cannot match within the limits are not an error: the parameter stays at
+// its limit and a WarnCalibrationLimit warning says so.
 func CalibrateProfile(ctx context.Context, p *chem.Profile, opt Options, m Measurements) (*CalibrationReport, error) {
 	if err := m.validate(); err != nil {
 		return nil, err
@@ -75,55 +70,207 @@ func CalibrateProfile(ctx context.Context, p *chem.Profile, opt Options, m Measu
 	if err != nil {
 		return nil, err
 	}
-	c := &calibrator{ctx: ctx, f: f, m: m, w: f.mixture.newWorkspace()}
-	rep := &CalibrationReport{}
-	base := Calibration{SlipThresholdPercent: f.opt.SlipThresholdPercent}
-	if rep.Before, err = c.errors(base); err != nil {
+	lib, err := CalibrateFats(ctx, []LibraryFat{{Fat: f, Measurements: m}})
+	if err != nil {
 		return nil, err
 	}
-	cal := base
-	switch {
-	case len(m.SFC) > 0:
-		if cal.TemperatureShiftK, err = c.fitShiftToSFC(); err != nil {
-			return nil, err
-		}
-		if m.HasSlipMeltingPoint {
-			v, err := f.mixture.sfc(f.opt.SolidModel, m.SlipMeltingPointC+zeroCelsiusK, cal.TemperatureShiftK, f.opt.MaxIterations, c.w)
-			if err != nil {
-				return nil, err
-			}
-			cal.SlipThresholdPercent = math.Min(math.Max(v, MinCalibratedThresholdPercent), MaxCalibratedThresholdPercent)
-			if cal.SlipThresholdPercent != v {
-				rep.Warnings = append(rep.Warnings, limitWarning(fmt.Sprintf(
-					"the calibrated model has %.3g %% solid at the measured slip melting point; the threshold was limited to %.3g %%",
-					v, cal.SlipThresholdPercent), "slip_threshold_percent"))
-			}
-		}
-	default:
-		if cal.TemperatureShiftK, err = c.fitShiftToSlip(cal.SlipThresholdPercent); err != nil {
-			return nil, err
-		}
+	return &lib.CalibrationReport, nil
+}
+
+// LibraryFat is one fat of a plant's library: prepared without a
+// calibration, with its measurements.
+type LibraryFat struct {
+	Fat          *Fat
+	Measurements Measurements
+}
+
+// FatFit is how the library's calibration fits one of its fats.
+type FatFit struct {
+	// Before and After are the fat's errors without and with the library's
+	// calibration.
+	Before, After CalibrationError
+	// LeaveOneOut is the fat's error with the calibration fitted to the
+	// other fats alone; LeaveOneOutDefined is false when the others carry
+	// no measurement the fit could use.
+	LeaveOneOut        CalibrationError
+	LeaveOneOutDefined bool
+}
+
+// LibraryReport is the result of [CalibrateFats]. Before, After and
+// LeaveOneOut (in the embedded report and here) pool every fat's points:
+// SFC errors over all SFC points, slip errors as an RMS over the fats with
+// a measured slip melting point.
+type LibraryReport struct {
+	CalibrationReport
+	LeaveOneOut CalibrationError
+	// LeaveOneOutDefined is false for a library of one fat.
+	LeaveOneOutDefined bool
+	Fats               []FatFit
+}
+
+// CalibrateFats fits one correction of the melting model shared by every
+// fat of a library, each prepared with the same polymorph and solid model
+// and no calibration:
+//
+//   - With SFC points in the library, the temperature shift ΔT (added to
+//     every TAG melting point of every fat, within ±MaxCalibrationShiftK)
+//     minimises the sum of squared SFC errors over all points: a 0.25 K scan
+//     refined by golden-section search. The slip threshold then becomes the
+//     mean, over the fats with a measured slip melting point, of the SFC the
+//     shifted model predicts at that temperature (clamped to 0.5–15 %); the
+//     SFC at the slip point is what a threshold means, and a mean of it is
+//     the least-squares threshold for the library.
+//   - With only slip melting points, the threshold stays that of the fats'
+//     options and ΔT is found by root finding so that the mean predicted
+//     minus measured slip melting point is zero (each fat's slip point rises
+//     monotonically with ΔT).
+//
+// With two fats or more the fit is repeated leaving each fat out in turn,
+// and the held-out fat's error under the others' calibration is reported:
+// the honest estimate of how the calibration does on a fat it has not seen.
+func CalibrateFats(ctx context.Context, fats []LibraryFat) (*LibraryReport, error) {
+	if len(fats) == 0 {
+		return nil, chem.Errorf(chem.KindInvalid, "a calibration needs at least one fat").WithField("required", "fats")
 	}
-	if math.Abs(cal.TemperatureShiftK) >= MaxCalibrationShiftK-1e-9 {
-		rep.Warnings = append(rep.Warnings, limitWarning(fmt.Sprintf(
-			"the temperature shift reached its limit of %+.3g K; the model cannot match these measurements well", cal.TemperatureShiftK),
-			"temperature_shift_k"))
-	}
-	if rep.After, err = c.errors(cal); err != nil {
+	c := newCalibrator(ctx, fats)
+	rep := &LibraryReport{Fats: make([]FatFit, len(fats))}
+	base := Calibration{SlipThresholdPercent: fats[0].Fat.opt.SlipThresholdPercent}
+	var err error
+	if rep.Before, err = c.errors(base, nil); err != nil {
 		return nil, err
 	}
-	// The threshold is always returned (fitted, or the one the shift was
-	// fitted with), so the calibration means the same wherever it is used.
+	cal, warnings, err := c.fit(base, nil)
+	if err != nil {
+		return nil, err
+	}
+	rep.Warnings = warnings
+	if rep.After, err = c.errors(cal, nil); err != nil {
+		return nil, err
+	}
 	// A model that already matches (RMS error under 0.01 points) has
 	// nothing to improve; otherwise a shift that does not lower the error
 	// means the model cannot follow the points.
-	if len(m.SFC) > 0 && rep.Before.SFCRMSErrorPercent > 0.01 &&
+	if rep.Before.SFCPoints > 0 && rep.Before.SFCRMSErrorPercent > 0.01 &&
 		!(rep.After.SFCRMSErrorPercent < rep.Before.SFCRMSErrorPercent-1e-9) {
 		rep.Warnings = append(rep.Warnings, limitWarning(
 			"no temperature shift improves the match with the measured SFC points; the model cannot follow them", "temperature_shift_k"))
 	}
 	rep.Calibration = cal
+	for i := range fats {
+		one := []int{i}
+		if rep.Fats[i].Before, err = c.errors(base, one); err != nil {
+			return nil, err
+		}
+		if rep.Fats[i].After, err = c.errors(cal, one); err != nil {
+			return nil, err
+		}
+	}
+	if len(fats) < 2 {
+		return rep, nil
+	}
+	// Leave one out: fit on the others, judge on the one.
+	var held []heldOut
+	for i := range fats {
+		others := make([]int, 0, len(fats)-1)
+		for j := range fats {
+			if j != i {
+				others = append(others, j)
+			}
+		}
+		if !c.hasData(others) {
+			continue
+		}
+		loo, _, err := c.fit(base, others)
+		if err != nil {
+			return nil, err
+		}
+		e, err := c.errors(loo, []int{i})
+		if err != nil {
+			return nil, err
+		}
+		rep.Fats[i].LeaveOneOut, rep.Fats[i].LeaveOneOutDefined = e, true
+		held = append(held, heldOut{i, loo})
+	}
+	if len(held) > 0 {
+		rep.LeaveOneOut, rep.LeaveOneOutDefined = c.pooledHeldOut(held, rep.Fats)
+	}
 	return rep, nil
+}
+
+// heldOut is one leave-one-out fit: the fat left out and the calibration
+// fitted without it.
+type heldOut struct {
+	fat int
+	cal Calibration
+}
+
+// pooledHeldOut pools the held-out errors like the other pooled errors.
+func (c *calibrator) pooledHeldOut(held []heldOut, fits []FatFit) (CalibrationError, bool) {
+	var e CalibrationError
+	var sq, slipSq float64
+	for _, h := range held {
+		f := fits[h.fat].LeaveOneOut
+		sq += f.SFCRMSErrorPercent * f.SFCRMSErrorPercent * float64(f.SFCPoints)
+		e.SFCPoints += f.SFCPoints
+		e.SFCMaxAbsErrorPercent = math.Max(e.SFCMaxAbsErrorPercent, f.SFCMaxAbsErrorPercent)
+		if f.SlipPoints > 0 && !math.IsNaN(f.SlipErrorK) {
+			slipSq += f.SlipErrorK * f.SlipErrorK
+			e.SlipPoints++
+		}
+	}
+	if e.SFCPoints > 0 {
+		e.SFCRMSErrorPercent = math.Sqrt(sq / float64(e.SFCPoints))
+	}
+	if e.SlipPoints > 0 {
+		e.SlipRMSErrorK = math.Sqrt(slipSq / float64(e.SlipPoints))
+		e.SlipErrorK = e.SlipRMSErrorK
+	}
+	return e, true
+}
+
+// fit fits the calibration on the fats listed (nil: all).
+func (c *calibrator) fit(base Calibration, only []int) (Calibration, []chem.Warning, error) {
+	cal := base
+	var warnings []chem.Warning
+	var err error
+	sfcPoints, slips := c.counts(only)
+	switch {
+	case sfcPoints > 0:
+		if cal.TemperatureShiftK, err = c.fitShiftToSFC(only); err != nil {
+			return cal, nil, err
+		}
+		if slips > 0 {
+			var sum float64
+			for _, i := range c.indices(only) {
+				cf := c.fats[i]
+				if !cf.m.HasSlipMeltingPoint {
+					continue
+				}
+				v, err := cf.f.mixture.sfc(cf.f.opt.SolidModel, cf.m.SlipMeltingPointC+zeroCelsiusK, cal.TemperatureShiftK, cf.f.opt.MaxIterations, cf.w)
+				if err != nil {
+					return cal, nil, err
+				}
+				sum += v
+			}
+			v := sum / float64(slips)
+			cal.SlipThresholdPercent = math.Min(math.Max(v, MinCalibratedThresholdPercent), MaxCalibratedThresholdPercent)
+			if cal.SlipThresholdPercent != v {
+				warnings = append(warnings, limitWarning(fmt.Sprintf(
+					"the calibrated model has %.3g %% solid at the measured slip melting point; the threshold was limited to %.3g %%",
+					v, cal.SlipThresholdPercent), "slip_threshold_percent"))
+			}
+		}
+	default:
+		if cal.TemperatureShiftK, err = c.fitShiftToSlip(cal.SlipThresholdPercent, only); err != nil {
+			return cal, nil, err
+		}
+	}
+	if math.Abs(cal.TemperatureShiftK) >= MaxCalibrationShiftK-1e-9 {
+		warnings = append(warnings, limitWarning(fmt.Sprintf(
+			"the temperature shift reached its limit of %+.3g K; the model cannot match these measurements well", cal.TemperatureShiftK),
+			"temperature_shift_k"))
+	}
+	return cal, warnings, nil
 }
 
 // limitWarning concerns a fitted calibration parameter, part of the answer
@@ -157,33 +304,77 @@ func (m Measurements) validate() error {
 	return nil
 }
 
+// calibrator holds the fats of a calibration and a workspace each.
 type calibrator struct {
-	ctx context.Context
-	f   *Fat
-	m   Measurements
-	w   *workspace
+	ctx  context.Context
+	fats []calFat
+}
+
+type calFat struct {
+	f *Fat
+	m Measurements
+	w *workspace
+}
+
+func newCalibrator(ctx context.Context, fats []LibraryFat) *calibrator {
+	c := &calibrator{ctx: ctx, fats: make([]calFat, len(fats))}
+	for i, lf := range fats {
+		c.fats[i] = calFat{f: lf.Fat, m: lf.Measurements, w: lf.Fat.mixture.newWorkspace()}
+	}
+	return c
+}
+
+// indices lists the fats a step works on: only, or all when only is nil.
+func (c *calibrator) indices(only []int) []int {
+	if only != nil {
+		return only
+	}
+	all := make([]int, len(c.fats))
+	for i := range all {
+		all[i] = i
+	}
+	return all
+}
+
+// counts gives the SFC points and the measured slip points of the fats.
+func (c *calibrator) counts(only []int) (sfcPoints, slips int) {
+	for _, i := range c.indices(only) {
+		sfcPoints += len(c.fats[i].m.SFC)
+		if c.fats[i].m.HasSlipMeltingPoint {
+			slips++
+		}
+	}
+	return sfcPoints, slips
+}
+
+func (c *calibrator) hasData(only []int) bool {
+	p, s := c.counts(only)
+	return p+s > 0
 }
 
 // sse is the sum of squared SFC errors at shift s.
-func (c *calibrator) sse(s float64) (float64, error) {
+func (c *calibrator) sse(s float64, only []int) (float64, error) {
 	var sum float64
-	for _, pt := range c.m.SFC {
-		v, err := c.f.mixture.sfc(c.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, s, c.f.opt.MaxIterations, c.w)
-		if err != nil {
-			return 0, err
+	for _, i := range c.indices(only) {
+		cf := c.fats[i]
+		for _, pt := range cf.m.SFC {
+			v, err := cf.f.mixture.sfc(cf.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, s, cf.f.opt.MaxIterations, cf.w)
+			if err != nil {
+				return 0, err
+			}
+			sum += (v - pt.SolidFatPercent) * (v - pt.SolidFatPercent)
 		}
-		sum += (v - pt.SolidFatPercent) * (v - pt.SolidFatPercent)
 	}
 	return sum, nil
 }
 
-func (c *calibrator) fitShiftToSFC() (float64, error) {
+func (c *calibrator) fitShiftToSFC(only []int) (float64, error) {
 	best, bestV := 0.0, math.Inf(1)
 	for s := -MaxCalibrationShiftK; s <= MaxCalibrationShiftK+1e-9; s += 0.25 {
 		if err := c.ctx.Err(); err != nil {
 			return 0, err
 		}
-		v, err := c.sse(s)
+		v, err := c.sse(s, only)
 		if err != nil {
 			return 0, err
 		}
@@ -196,11 +387,11 @@ func (c *calibrator) fitShiftToSFC() (float64, error) {
 	lo, hi := math.Max(best-0.25, -MaxCalibrationShiftK), math.Min(best+0.25, MaxCalibrationShiftK)
 	const g = 0.6180339887498949
 	a, b := hi-g*(hi-lo), lo+g*(hi-lo)
-	fa, err := c.sse(a)
+	fa, err := c.sse(a, only)
 	if err != nil {
 		return 0, err
 	}
-	fb, err := c.sse(b)
+	fb, err := c.sse(b, only)
 	if err != nil {
 		return 0, err
 	}
@@ -208,13 +399,13 @@ func (c *calibrator) fitShiftToSFC() (float64, error) {
 		if fa < fb {
 			hi, b, fb = b, a, fa
 			a = hi - g*(hi-lo)
-			if fa, err = c.sse(a); err != nil {
+			if fa, err = c.sse(a, only); err != nil {
 				return 0, err
 			}
 		} else {
 			lo, a, fa = a, b, fb
 			b = lo + g*(hi-lo)
-			if fb, err = c.sse(b); err != nil {
+			if fb, err = c.sse(b, only); err != nil {
 				return 0, err
 			}
 		}
@@ -223,45 +414,65 @@ func (c *calibrator) fitShiftToSFC() (float64, error) {
 	// stretch (points no shift changes) the grid's choice, the shift nearest
 	// 0, stands.
 	s := 0.5 * (lo + hi)
-	if v, err := c.sse(s); err != nil || !(v < bestV) {
+	if v, err := c.sse(s, only); err != nil || !(v < bestV) {
 		s = best
 	}
 	return s, nil
 }
 
-// slip is the predicted slip melting point (K) at shift s and threshold thr.
-func (c *calibrator) slip(s, thr float64) (float64, bool, error) {
-	g := *c.f
+// slip is fat i's predicted slip melting point (K) at shift s and
+// threshold thr.
+func (c *calibrator) slip(i int, s, thr float64) (float64, bool, error) {
+	g := *c.fats[i].f
 	g.opt.Calibration = Calibration{TemperatureShiftK: s, SlipThresholdPercent: thr}
-	g.mixture = c.f.mixture.shifted(s)
+	g.mixture = c.fats[i].f.mixture.shifted(s)
 	return g.slipPoint(g.mixture.newWorkspace(), nil, math.NaN())
 }
 
-func (c *calibrator) fitShiftToSlip(thr float64) (float64, error) {
-	target := c.m.SlipMeltingPointC + zeroCelsiusK
+// meanSlipError is the mean predicted minus measured slip melting point of
+// the fats with one, K, at shift s.
+func (c *calibrator) meanSlipError(s, thr float64, only []int) (float64, error) {
+	var sum float64
+	n := 0
+	for _, i := range c.indices(only) {
+		cf := c.fats[i]
+		if !cf.m.HasSlipMeltingPoint {
+			continue
+		}
+		t, _, err := c.slip(i, s, thr)
+		if err != nil {
+			return 0, err
+		}
+		sum += t - (cf.m.SlipMeltingPointC + zeroCelsiusK)
+		n++
+	}
+	return sum / float64(n), nil
+}
+
+func (c *calibrator) fitShiftToSlip(thr float64, only []int) (float64, error) {
 	lo, hi := -MaxCalibrationShiftK, MaxCalibrationShiftK
-	flo, _, err := c.slip(lo, thr)
+	flo, err := c.meanSlipError(lo, thr, only)
 	if err != nil {
 		return 0, err
 	}
-	fhi, _, err := c.slip(hi, thr)
+	fhi, err := c.meanSlipError(hi, thr, only)
 	if err != nil {
 		return 0, err
 	}
-	if target <= flo {
+	if flo >= 0 {
 		return lo, nil
 	}
-	if target >= fhi {
+	if fhi <= 0 {
 		return hi, nil
 	}
-	// The slip melting point rises with the shift; it may step where
+	// The slip melting points rise with the shift; they may step where
 	// pooled species cross the threshold, which the search brackets too.
 	r, err := roots.Find(roots.Problem{
 		F: func(s float64) (float64, float64, error) {
-			v, _, err := c.slip(s, thr)
-			return v - target, math.NaN(), err
+			v, err := c.meanSlipError(s, thr, only)
+			return v, math.NaN(), err
 		},
-		Lo: lo, Hi: hi, FLo: flo - target, FHi: fhi - target, Increasing: true, Start: math.NaN(),
+		Lo: lo, Hi: hi, FLo: flo, FHi: fhi, Increasing: true, Start: math.NaN(),
 		XTol: 1e-6, MaxIter: 200, Check: c.ctx.Err,
 	})
 	if err != nil {
@@ -273,31 +484,45 @@ func (c *calibrator) fitShiftToSlip(thr float64) (float64, error) {
 	return 0.5 * (r.Lo + r.Hi), nil
 }
 
-// errors evaluates the model with calibration cal against the measurements.
-func (c *calibrator) errors(cal Calibration) (CalibrationError, error) {
+// errors evaluates calibration cal against the measurements of the fats
+// listed (nil: all), pooled: for one fat its own errors.
+func (c *calibrator) errors(cal Calibration, only []int) (CalibrationError, error) {
 	var e CalibrationError
-	var sq float64
-	for _, pt := range c.m.SFC {
-		v, err := c.f.mixture.sfc(c.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, cal.TemperatureShiftK, c.f.opt.MaxIterations, c.w)
-		if err != nil {
-			return e, err
+	var sq, slipSq float64
+	idx := c.indices(only)
+	for _, i := range idx {
+		cf := c.fats[i]
+		for _, pt := range cf.m.SFC {
+			v, err := cf.f.mixture.sfc(cf.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, cal.TemperatureShiftK, cf.f.opt.MaxIterations, cf.w)
+			if err != nil {
+				return e, err
+			}
+			d := v - pt.SolidFatPercent
+			sq += d * d
+			e.SFCMaxAbsErrorPercent = math.Max(e.SFCMaxAbsErrorPercent, math.Abs(d))
+			e.SFCPoints++
 		}
-		d := v - pt.SolidFatPercent
-		sq += d * d
-		e.SFCMaxAbsErrorPercent = math.Max(e.SFCMaxAbsErrorPercent, math.Abs(d))
-		e.SFCPoints++
+		if cf.m.HasSlipMeltingPoint {
+			t, ok, err := c.slip(i, cal.TemperatureShiftK, cal.SlipThresholdPercent)
+			if err != nil {
+				return e, err
+			}
+			e.SlipPoints++
+			d := math.NaN()
+			if ok {
+				d = t - zeroCelsiusK - cf.m.SlipMeltingPointC
+			}
+			slipSq += d * d
+			e.SlipErrorK = d
+		}
 	}
 	if e.SFCPoints > 0 {
 		e.SFCRMSErrorPercent = math.Sqrt(sq / float64(e.SFCPoints))
 	}
-	if c.m.HasSlipMeltingPoint {
-		t, ok, err := c.slip(cal.TemperatureShiftK, cal.SlipThresholdPercent)
-		if err != nil {
-			return e, err
-		}
-		e.SlipErrorK = math.NaN()
-		if ok {
-			e.SlipErrorK = t - zeroCelsiusK - c.m.SlipMeltingPointC
+	if e.SlipPoints > 0 {
+		e.SlipRMSErrorK = math.Sqrt(slipSq / float64(e.SlipPoints))
+		if len(idx) > 1 {
+			e.SlipErrorK = e.SlipRMSErrorK
 		}
 	}
 	return e, nil
@@ -310,8 +535,8 @@ func (f *Fat) Compare(m Measurements) (CalibrationError, error) {
 	if err := m.validate(); err != nil {
 		return CalibrationError{}, err
 	}
-	c := &calibrator{ctx: context.Background(), f: f, m: m, w: f.mixture.newWorkspace()}
-	return c.errors(Calibration{SlipThresholdPercent: f.opt.slipThreshold()})
+	c := newCalibrator(context.Background(), []LibraryFat{{Fat: f, Measurements: m}})
+	return c.errors(Calibration{SlipThresholdPercent: f.opt.slipThreshold()}, nil)
 }
 
 // shifted returns a copy of m with every melting point raised by s.

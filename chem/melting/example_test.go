@@ -38,9 +38,11 @@ func ExampleMelt() {
 func ExampleCalibrate() {
 	slip := 36.0
 	rep, err := melting.Calibrate(context.Background(), chem.NewCatalogue(), melting.CalibrationInput{
-		Profile:     palm,
-		Sn2Estimate: "palm_rule",
-		Measured:    &melting.MeasuredInput{SlipMeltingPointC: &slip},
+		CalibrationFat: melting.CalibrationFat{
+			Profile:     palm,
+			Sn2Estimate: "palm_rule",
+			Measured:    &melting.MeasuredInput{SlipMeltingPointC: &slip},
+		},
 	})
 	if err != nil {
 		fmt.Println(err)

@@ -104,25 +104,39 @@ type MeltingAnswer struct {
 	Warnings []chem.Warning
 }
 
-// CalibrationInput is a calibration request in its own shape: the fat's
-// profile, the model options it is to be computed with, and its
-// measurements (required).
-type CalibrationInput struct {
+// CalibrationFat is one fat of a calibration: its profile, how its acids
+// sit on glycerol, and its measurements (required).
+type CalibrationFat struct {
 	Profile              *chem.ProfileInput
 	Sn2Profile           *chem.ProfileInput
 	Distribution         string
 	Sn2Estimate          string
 	Sn2EnrichmentFactors []EnrichmentFactor
-	Polymorph            string
-	SolidModel           string
-	SlipThresholdPercent *float64
 	Measured             *MeasuredInput
 }
 
+// CalibrationInput is a calibration request in its own shape: one fat (the
+// fields of the embedded CalibrationFat) or a library of fats (Fats),
+// exactly one, and the model options shared by all.
+type CalibrationInput struct {
+	CalibrationFat
+	Fats                 []CalibrationFat
+	Polymorph            string
+	SolidModel           string
+	SlipThresholdPercent *float64
+}
+
+// MaxCalibrationFats is the most fats one calibration takes.
+const MaxCalibrationFats = 50
+
 // CalibrationAnswer is the answer of [Calibrate].
 type CalibrationAnswer struct {
-	*CalibrationReport
-	HasSlipMeltingPoint bool
+	*LibraryReport
+	// HasSlipMeltingPoint reports, per fat, whether it had a measured slip
+	// melting point (for one fat: the only entry).
+	HasSlipMeltingPoint []bool
+	// Library reports that the request was a library (Fats).
+	Library bool
 	// Warnings are every warning of the request, paths into the input.
 	Warnings []chem.Warning
 }
@@ -442,30 +456,71 @@ func Melt(cat *chem.Catalogue, in MeltingInput) (*MeltingAnswer, error) {
 	return out, nil
 }
 
-// Calibrate fits the model's calibration to the measurements of a
-// request; see [CalibrateProfile] for the method. Errors are as for [Melt],
-// plus KindMalformed when the measurements are missing and the context's
-// error if ctx ends.
+// Calibrate fits the model's calibration to the measurements of one fat
+// or of a library of fats; see [CalibrateFats] for the method. Errors are
+// as for [Melt], plus KindMalformed when the measurements are missing or
+// the request gives neither one fat nor a library, or both, and the
+// context's error if ctx ends. Paths of a library's fats are under
+// "fats", i.
 func Calibrate(ctx context.Context, cat *chem.Catalogue, in CalibrationInput) (*CalibrationAnswer, error) {
-	if in.Measured == nil {
-		return nil, chem.Errorf(chem.KindMalformed, "measurements are required").WithField("required", "measured")
+	single := in.Profile != nil || in.Measured != nil || in.Sn2Profile != nil || in.Sn2EnrichmentFactors != nil ||
+		in.Distribution != "" || in.Sn2Estimate != ""
+	if single == (in.Fats != nil) {
+		return nil, chem.Errorf(chem.KindMalformed, "give one fat (profile and measured) or a library (fats)").
+			WithField("exactly one of profile and fats is required")
 	}
-	p, err := cat.ReadProfileAt(in.Profile, "profile")
+	fats, prefix := []CalibrationFat{in.CalibrationFat}, func(int) []any { return nil }
+	if !single {
+		if len(in.Fats) == 0 || len(in.Fats) > MaxCalibrationFats {
+			return nil, chem.Errorf(chem.KindMalformed, "a library holds 1 to %d fats", MaxCalibrationFats).
+				WithField(fmt.Sprintf("give 1 to %d fats", MaxCalibrationFats), "fats")
+		}
+		fats, prefix = in.Fats, func(i int) []any { return []any{"fats", i} }
+	}
+	ans := &CalibrationAnswer{Library: !single}
+	lib := make([]LibraryFat, len(fats))
+	for i, cf := range fats {
+		fat, m, warnings, err := prepareCalibrationFat(cat, &cf, in)
+		if err != nil {
+			return nil, chem.PrefixError(err, prefix(i)...)
+		}
+		lib[i] = LibraryFat{Fat: fat, Measurements: m}
+		ans.HasSlipMeltingPoint = append(ans.HasSlipMeltingPoint, m.HasSlipMeltingPoint)
+		ans.Warnings = append(ans.Warnings, chem.PrefixWarnings(warnings, prefix(i)...)...)
+	}
+	rep, err := CalibrateFats(ctx, lib)
 	if err != nil {
 		return nil, err
 	}
-	model := ModelInput{Polymorph: in.Polymorph, SolidModel: in.SolidModel, Distribution: in.Distribution,
-		Sn2Estimate: in.Sn2Estimate, SlipThresholdPercent: in.SlipThresholdPercent}
+	ans.LibraryReport = rep
+	ans.Warnings = append(ans.Warnings, rep.Warnings...)
+	return ans, nil
+}
+
+// prepareCalibrationFat reads one fat of a calibration and prepares it
+// without a calibration.
+func prepareCalibrationFat(cat *chem.Catalogue, cf *CalibrationFat, in CalibrationInput) (*Fat, Measurements, []chem.Warning, error) {
+	if cf.Measured == nil {
+		return nil, Measurements{}, nil, chem.Errorf(chem.KindMalformed, "measurements are required").WithField("required", "measured")
+	}
+	p, err := cat.ReadProfileAt(cf.Profile, "profile")
+	if err != nil {
+		return nil, Measurements{}, nil, err
+	}
+	model := ModelInput{Polymorph: in.Polymorph, SolidModel: in.SolidModel, Distribution: cf.Distribution,
+		Sn2Estimate: cf.Sn2Estimate, SlipThresholdPercent: in.SlipThresholdPercent}
 	opt, warnings, err := profileOptions(cat, p, &model,
-		sn2Inputs{estimate: in.Sn2Estimate, profile: in.Sn2Profile, factors: in.Sn2EnrichmentFactors})
+		sn2Inputs{estimate: cf.Sn2Estimate, profile: cf.Sn2Profile, factors: cf.Sn2EnrichmentFactors})
 	if err != nil {
-		return nil, err
+		return nil, Measurements{}, nil, err
 	}
-	m := in.Measured.measurements()
-	rep, err := CalibrateProfile(ctx, p, opt, m)
+	m := cf.Measured.measurements()
+	if err := m.validate(); err != nil {
+		return nil, Measurements{}, nil, err
+	}
+	fat, err := Prepare(p, opt)
 	if err != nil {
-		return nil, err
+		return nil, Measurements{}, nil, err
 	}
-	all := append(append(append([]chem.Warning{}, p.Warnings...), warnings...), rep.Warnings...)
-	return &CalibrationAnswer{CalibrationReport: rep, HasSlipMeltingPoint: m.HasSlipMeltingPoint, Warnings: all}, nil
+	return fat, m, append(append([]chem.Warning{}, p.Warnings...), warnings...), nil
 }
