@@ -89,13 +89,7 @@ func (f *Fat) newBuilder(pr *prepared) *builder {
 		if !bd.grouped {
 			break
 		}
-		switch pr.chains[i].kind {
-		case kindSaturated:
-		case kindTransMonoene:
-			bd.famCode[i] = nb
-		default:
-			bd.famCode[i] = 4 * nb
-		}
+		bd.famCode[i] = familyClass(pr.chains[i].kind) * nb
 	}
 	bd.sn2MismatchS = 1000 * pr.k.SN2MismatchKJ / pr.thetaK
 	bd.outerMismatchS = 1000 * pr.k.OuterMismatchKJ / pr.thetaK

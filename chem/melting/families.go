@@ -56,15 +56,36 @@ type familyKey struct {
 	band       int16 // carbon-number band, centre = band × familyBandCarbons
 }
 
+// familyClass is what a chain counts as in the family rule: 0 for a
+// saturated chain, transClass for a trans monoene, cisClass for a
+// cis-unsaturated chain. A TAG's family adds its chains' classes (so the
+// sum encodes both counts) and its carbon band; the builder's dense keys
+// and familyOf both derive from this one function.
+func familyClass(k chainKind) int {
+	switch k {
+	case kindSaturated:
+		return 0
+	case kindTransMonoene:
+		return transClass
+	default:
+		return cisClass
+	}
+}
+
+// Class weights: up to three trans chains fit below one cis chain.
+const (
+	transClass = 1
+	cisClass   = 4
+)
+
 // familyOf is the family of the TAG with chains c1, c2, c3.
 func familyOf(c1, c2, c3 chain) familyKey {
 	var k familyKey
 	for _, c := range [3]chain{c1, c2, c3} {
-		switch c.kind {
-		case kindSaturated:
-		case kindTransMonoene:
+		switch familyClass(c.kind) {
+		case transClass:
 			k.trans++
-		default:
+		case cisClass:
 			k.cis++
 		}
 	}
