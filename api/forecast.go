@@ -41,10 +41,12 @@ type HardeningTarget struct {
 
 // MeltingTargetBody reports a slip-melting-point target.
 type MeltingTargetBody struct {
-	TargetSlipMeltingPointC float64  `json:"target_slip_melting_point_c"`
-	SlipMeltingPointC       float64  `json:"slip_melting_point_c"`
-	FeedSlipMeltingPointC   *float64 `json:"feed_slip_melting_point_c"`
-	IodineValue             float64  `json:"iodine_value"`
+	TargetSlipMeltingPointC float64         `json:"target_slip_melting_point_c"`
+	SlipMeltingPointC       float64         `json:"slip_melting_point_c"`
+	FeedSlipMeltingPointC   *float64        `json:"feed_slip_melting_point_c"`
+	IodineValue             float64         `json:"iodine_value"`
+	Sn2Estimate             string          `json:"sn2_estimate"`
+	Uncertainty             UncertaintyBody `json:"uncertainty"`
 }
 
 // ForecastRequest is the body of POST /v1/hardening/forecast.
@@ -211,6 +213,8 @@ func fromForecast(a *hardening.ForecastAnswer) ForecastResponse {
 			SlipMeltingPointC:       round(st.SlipMeltingPointC, decimalsMelting),
 			FeedSlipMeltingPointC:   roundPtr(finiteOrNil(st.FeedSlipMeltingPointC), decimalsMelting),
 			IodineValue:             st.IodineValue,
+			Sn2Estimate:             st.SN2Estimate.String(),
+			Uncertainty:             fromUncertainty(st.Uncertainty),
 		}
 	}
 	if r.Sn2Product != nil {

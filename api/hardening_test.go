@@ -228,7 +228,7 @@ func TestHardeningBadRequests(t *testing.T) {
 // about the sn-2 rule reaches the forecast's answer pointing at the melting
 // option that would change it.
 func TestForecastSlipTargetWarnsAtMeltingOptions(t *testing.T) {
-	got := forecast(t, `{"profile":`+palmLike+`,"target":{"slip_melting_point_c":40},"catalyst":{"preset":"nickel_selective"}}`)
+	got := forecast(t, `{"profile":`+palmLike+`,"target":{"slip_melting_point_c":40},"catalyst":{"preset":"nickel_selective"},"melting":{"sn2_estimate":"seed_oil_rule"}}`)
 	var ptrs []string
 	for _, w := range got.Warnings {
 		if w.Code == "sn2_rule_questionable" {

@@ -120,9 +120,27 @@ type MeltingParameters struct {
 	SolidModel            string             `json:"solid_model"`
 	Distribution          string             `json:"distribution"`
 	Sn2Estimate           *string            `json:"sn2_estimate"`
+	Sn2Automatic          bool               `json:"sn2_automatic"`
+	FatClass              string             `json:"fat_class"`
 	PoolFloorMoleFraction float64            `json:"pool_floor_mole_fraction"`
 	SlipThresholdPercent  float64            `json:"slip_threshold_percent"`
 	Calibration           MeltingCalibration `json:"calibration"`
+}
+
+// UncertaintyBody is the typical error of a melting estimate for its kind
+// of fat.
+type UncertaintyBody struct {
+	FatClass          string  `json:"fat_class"`
+	SlipMeltingPointK float64 `json:"slip_melting_point_k"`
+	SFCPoints         float64 `json:"sfc_points"`
+	ValidationFats    int     `json:"validation_fats"`
+	Calibrated        bool    `json:"calibrated"`
+}
+
+// fromUncertainty converts the science's figure.
+func fromUncertainty(u melting.Uncertainty) UncertaintyBody {
+	return UncertaintyBody{FatClass: u.Class.String(), SlipMeltingPointK: round(u.SlipMeltingPointK, decimalsMelting),
+		SFCPoints: round(u.SFCPoints, decimalsMelting), ValidationFats: u.Fats, Calibrated: u.Calibrated}
 }
 
 // MeltingResponse is the answer of POST /v1/melting.
@@ -139,6 +157,7 @@ type MeltingResponse struct {
 	PooledMassPercent    float64           `json:"pooled_mass_percent"`
 	MeasuredOverrides    int               `json:"measured_overrides"`
 	Parameters           MeltingParameters `json:"parameters"`
+	Uncertainty          UncertaintyBody   `json:"uncertainty"`
 	Assumptions          []string          `json:"assumptions"`
 	Comparison           *MeltingError     `json:"comparison,omitempty"`
 	Warnings             []WarningBody     `json:"warnings"`
@@ -321,12 +340,15 @@ func fromMelting(a *melting.MeltingAnswer) MeltingResponse {
 			Distribution:          r.Parameters.Distribution.String(),
 			PoolFloorMoleFraction: r.Parameters.PoolFloorMoleFraction,
 			SlipThresholdPercent:  r.Parameters.SlipThresholdPercent,
+			Sn2Automatic:          r.Parameters.SN2Chosen,
+			FatClass:              r.Parameters.Class.String(),
 			Calibration: MeltingCalibration{
 				TemperatureShiftK:    r.Parameters.Calibration.TemperatureShiftK,
 				SlipThresholdPercent: r.Parameters.Calibration.SlipThresholdPercent,
 			},
 		},
-		Warnings: toWarnings(a.Warnings),
+		Uncertainty: fromUncertainty(r.Uncertainty),
+		Warnings:    toWarnings(a.Warnings),
 	}
 	if r.SlipMeltingPointDefined {
 		out.SlipMeltingPointC = optional(round(r.SlipMeltingPointC, decimalsMelting))

@@ -3,6 +3,7 @@ package api_test
 import (
 	"encoding/json"
 	"net/http"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -250,8 +251,9 @@ func TestMeltingWarningPointers(t *testing.T) {
 	}
 	require.True(t, saw, "palm-like has 20:0 and 20:1, outside the fitted data: %v", got.Warnings)
 
-	// Without sn2_estimate the seed-oil rule applies, which does not suit
-	// palm oil: the warning points where the client chooses the rule.
+	// The seed-oil rule, asked for explicitly, does not suit palm oil: the
+	// warning points where the client chooses the rule.
+	got = melt(t, `{"profile":`+palmLike+`,"sn2_estimate":"seed_oil_rule"}`)
 	var sn2 bool
 	for _, w := range got.Warnings {
 		if w.Code == "sn2_rule_questionable" {
@@ -260,6 +262,33 @@ func TestMeltingWarningPointers(t *testing.T) {
 		}
 	}
 	require.True(t, sn2, "%v", got.Warnings)
+}
+
+// A palm oil posted plainly gets the palm rule by the automatic choice, a
+// slip melting point in palm oil's range, and says how good that is.
+func TestPalmPostedPlainly(t *testing.T) {
+	got := melt(t, `{"profile":`+palmLike+`}`)
+	require.Equal(t, "palm_rule", *got.Parameters.Sn2Estimate)
+	require.True(t, got.Parameters.Sn2Automatic)
+	require.Equal(t, "palm", got.Parameters.FatClass)
+	require.NotNil(t, got.SlipMeltingPointC)
+	// Trade specification for refined palm oil: melting point (AOCS Cc
+	// 3-25) 33-39 °C.
+	require.GreaterOrEqual(t, *got.SlipMeltingPointC, 33.0)
+	require.LessOrEqual(t, *got.SlipMeltingPointC, 39.0)
+	require.Contains(t, strings.Join(got.Assumptions, " "), "palm rule, chosen automatically")
+	require.Equal(t, "palm", got.Uncertainty.FatClass)
+	require.Positive(t, got.Uncertainty.SlipMeltingPointK)
+	require.Positive(t, got.Uncertainty.ValidationFats)
+	require.False(t, got.Uncertainty.Calibrated)
+	for _, w := range got.Warnings {
+		require.NotEqual(t, "sn2_rule_questionable", w.Code)
+	}
+	// An explicit rule still wins.
+	seed := melt(t, `{"profile":`+palmLike+`,"sn2_estimate":"seed_oil_rule"}`)
+	require.Equal(t, "seed_oil_rule", *seed.Parameters.Sn2Estimate)
+	require.False(t, seed.Parameters.Sn2Automatic)
+	require.Less(t, *seed.SlipMeltingPointC, *got.SlipMeltingPointC)
 }
 
 func TestCalibrationFromSFCPoints(t *testing.T) {

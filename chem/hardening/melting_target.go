@@ -37,8 +37,14 @@ type SlipTargetResult struct {
 	// Evaluations counts the forecasts made during the search.
 	Evaluations int
 	// MeltingWarnings are what the melting model assumed for the product
-	// (pooling, acids outside its fitted data).
+	// (pooling, acids outside its fitted data) and how uncertain it is for
+	// a fat of the product's kind.
 	MeltingWarnings []chem.Warning
+	// Uncertainty is the melting model's typical error for the product's
+	// kind of fat; SN2Estimate is the sn-2 estimate it used for the product
+	// (SN2Supplied when the forecast hardened a measured sn-2 composition).
+	Uncertainty melting.Uncertainty
+	SN2Estimate melting.SN2Estimate
 }
 
 // ForecastToSlipMeltingPoint hardens req.Feed with req.Catalyst until the
@@ -86,12 +92,15 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 		return o
 	}
 	// slip is the slip melting point of a fat, −Inf when it has none, and
-	// what the melting model assumed for it.
+	// what the melting model assumed for it; last is the model of the
+	// latest fat.
+	var last *melting.Fat
 	slip := func(p, sn2 *chem.Profile) (float64, []chem.Warning, error) {
 		fat, err := melting.Prepare(p, optFor(sn2))
 		if err != nil {
 			return 0, nil, err
 		}
+		last = fat
 		t, defined, err := fat.SlipMeltingPointC()
 		if err != nil {
 			return 0, nil, err
@@ -169,6 +178,10 @@ func ForecastToSlipMeltingPoint(ctx context.Context, cat *chem.Catalogue, req Fo
 			return nil, err
 		}
 		out.ForecastResult, out.SlipMeltingPointC, out.MeltingWarnings = final, fs, warnings
+		var uw []chem.Warning
+		out.Uncertainty, uw = last.Uncertainty()
+		out.MeltingWarnings = append(out.MeltingWarnings, uw...)
+		out.SN2Estimate = last.Composition().SN2Estimate
 		if math.Abs(fs-targetC) > slipToleranceK {
 			// The slip melting point steps across the target between
 			// neighbouring iodine values (pooling of minor species):

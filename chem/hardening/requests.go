@@ -116,6 +116,10 @@ type SlipTarget struct {
 	IodineValue float64
 	// Evaluations counts the forecasts of the search.
 	Evaluations int
+	// Uncertainty is the melting model's typical error for the product's
+	// kind of fat; SN2Estimate the sn-2 estimate it used.
+	Uncertainty melting.Uncertainty
+	SN2Estimate melting.SN2Estimate
 }
 
 // ForecastAnswer is the answer of [Forecast].
@@ -209,6 +213,8 @@ func Forecast(ctx context.Context, cat *chem.Catalogue, in ForecastInput) (*Fore
 			FeedSlipMeltingPointC:   st.FeedSlipMeltingPointC,
 			IodineValue:             st.FinalIodineValue,
 			Evaluations:             st.Evaluations,
+			Uncertainty:             st.Uncertainty,
+			SN2Estimate:             st.SN2Estimate,
 		}
 		for _, w := range st.MeltingWarnings {
 			if len(w.Path) > 0 && meltingOptionFields[w.Path[0]] {

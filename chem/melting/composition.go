@@ -155,9 +155,14 @@ type Composition struct {
 	// Species lists every species with a positive mole fraction, in a fixed
 	// enumeration order (not sorted).
 	Species []Species
-	// Distribution and SN2Estimate are what was used.
+	// Distribution and SN2Estimate are what was used; with the automatic
+	// choice SN2Estimate is the rule it chose, SN2Chosen says so and
+	// SN2Reason why. Class is the profile's FatClass.
 	Distribution Distribution
 	SN2Estimate  SN2Estimate
+	SN2Chosen    bool
+	SN2Reason    string
+	Class        FatClass
 	// Warnings records what the sn-2 step did or doubts: clipping of a
 	// supplied sn-2 composition (WarnSN2Clipped), the seed-oil rule applied
 	// to a palm-like fat (WarnSN2RuleQuestionable).
@@ -202,7 +207,10 @@ func positionPools(p *chem.Profile, opt CompositionOptions) (*Composition, error
 		return nil, chem.Errorf(chem.KindInvalid, "a fatty-acid profile is required").WithField("no acids", "profile", "acids")
 	}
 	opt = opt.withDefaults()
-	c := &Composition{Distribution: opt.Distribution}
+	c := &Composition{Distribution: opt.Distribution, Class: ClassOf(p)}
+	if opt.Distribution == FullRandom {
+		c.Class = ClassInteresterified
+	}
 	n := len(p.Components)
 	c.Acids = make([]*chem.FattyAcid, n)
 	c.Total = make([]float64, n)
@@ -215,6 +223,10 @@ func positionPools(p *chem.Profile, opt CompositionOptions) (*Composition, error
 		c.SN2 = c.Total
 		c.SN13 = c.Total
 	case Positional:
+		if opt.SN2 == SN2Automatic {
+			opt.SN2, c.SN2Reason = automaticSN2(c.Class)
+			c.SN2Chosen = true
+		}
 		c.SN2Estimate = opt.SN2
 		b, warn, err := sn2Composition(p, c.Total, opt)
 		if err != nil {

@@ -14,27 +14,40 @@
 // # From fatty acids to triacylglycerols (composition.go, sn2.go)
 //
 // Full random distribution: P(i,j,k) = x_i x_j x_k (chemically
-// interesterified fats; a fair default for tallow). The 1,3-random-2-random
+// interesterified fats). The 1,3-random-2-random
 // distribution (Vander Wal 1960; Coleman 1961): sn-2 has its own
 // composition b, sn-1 and sn-3 share a = (3x − b)/2, which needs b_i ≤ 3x_i,
 // and P(i,j,k) = a_i b_j a_k. Regio-isomers are lumped (sn-1 and sn-3
 // equivalent). A species weighs 92.094 + Σ acids − 3 × 18.015 g/mol.
 //
 // The sn-2 composition, when not measured (pancreatic lipase analysis), is
-// estimated: the seed-oil rule keeps saturated and C20+ acids out of sn-2
-// and lets the unsaturated C18 acids fill it in proportion to their amounts
-// (if they are less than a third of all chains, all of them go to sn-2 and
-// the other acids fill the rest); the palm rule lets saturated and C20+
-// acids compete with a selectivity calibrated to a published palm-oil sn-2
-// analysis ([PalmSN2Selectivity]); enrichment factors place acids by
-// relative preference. Species below a mole-fraction floor are pooled by
-// melting point within their family (components.go).
+// estimated by a rule chosen from the composition ([SN2Automatic], the
+// default; the chosen rule and the reason are reported). [ClassOf] reads
+// the kind of fat from its acids ([FatClass]): milk fat, lauric, hardened,
+// palm, cocoa-butter type, lard, tallow or seed oil. The rules: the seed-oil
+// rule (seed oils, cocoa-butter-type fats) keeps saturated and C20+ acids
+// out of sn-2 and lets the unsaturated C18 acids fill it in proportion to
+// their amounts (if they are less than a third of all chains, all of them
+// go to sn-2 and the other acids fill the rest); the palm rule lets
+// saturated and C20+ acids compete with a selectivity calibrated to a
+// published palm-oil sn-2 analysis ([PalmSN2Selectivity]); the lauric rule
+// follows the published order of preference for sn-2 in lauric oils
+// (unsaturated acids, then lauric acid, then the rest); the lard, tallow
+// and milk-fat rules carry each acid's published share at sn-2 over as an
+// enrichment factor ([LardSN2], [TallowSN2], [MilkFatSN2]); the hardened
+// rule keeps the C18 chains at sn-2, where the feed's unsaturated C18 acids
+// were before hardening saturated or isomerised them. Caller-given
+// enrichment factors place acids by relative preference. Species below a
+// mole-fraction floor are pooled by melting point within their family
+// (components.go).
 //
 // # Pure-TAG properties (correlation.go)
 //
 // Enthalpy and entropy of fusion are each linear in the total acyl carbon
 // number, with terms for the sn-2 and the outer chain-length mismatch, odd
-// chains and cis-18:1, trans-18:1, 18:2 and 18:3 chains — the published
+// chains and cis-18:1, trans-18:1, 18:2 and 18:3 chains (a diene with a
+// trans bond counts 1.65 trans-18:1 chains, scaled by the free acids'
+// melting points; see transDieneEquivalents) — the published
 // structure of Wesdorp's correlation (L.H. Wesdorp, thesis, Delft 1990;
 // restated in Marangoni & Wesdorp, Structure and Properties of Fat Crystal
 // Networks, 2nd ed.), except that cis-18:1 chains at sn-2 and at sn-1/3 have
@@ -59,7 +72,9 @@
 //   - one ideal solid solution: K_i = 1/x_i,sat and the Rachford–Rice
 //     equation Σ z_i(K_i − 1)/(1 + β(K_i − 1)) = 0 for the solid fraction β;
 //   - the default, partial miscibility: species grouped into families of
-//     near-isomorphous TAGs (same unsaturation, total acyl carbons in one
+//     near-isomorphous TAGs (the same number of cis-unsaturated chains, with
+//     trans chains packing as straight ones alongside saturated chains, as
+//     the crystal structures of trans TAGs show; total acyl carbons in one
 //     6-carbon band), each family an ideal solid solution, the families
 //     mutually immiscible (Michelsen's convex formulation of multiphase
 //     ideal-solution equilibrium, solved by a joint Newton method with a
@@ -87,7 +102,9 @@
 // measured SFC points and/or slip melting point.
 //
 // Defaults, and the validation that chose them, are on [Options] and in
-// testdata/melting/VALIDATION.md. The results are estimates: real fats
+// testdata/melting/VALIDATION.md. The results are estimates, and every
+// answer says how good for its kind of fat ([Uncertainty], from the
+// plausibility fixture, testdata/melting/PLAUSIBILITY.md): real fats
 // crystallise out of equilibrium, their mixed crystals are not ideal, some
 // TAG pairs form compounds, and their measured SFC depends on the tempering
 // procedure.

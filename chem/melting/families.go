@@ -28,18 +28,36 @@ import (
 //     and "solid miscibility is strongly favoured by the presence of an
 //     asymmetric triglyceride" (such as PPS, which differs from PPP by one
 //     chain two carbons longer).
-//   - Saturated and unsaturated TAGs crystallise apart: POP/OOP is eutectic
-//     (Zhang, Ueno, Miura & Sato, JAOCS 84, 2007); trilaurin forms eutectics
-//     with SOS (Yoshikawa et al., Molecules 25:5313, 2020).
+//   - Saturated and cis-unsaturated TAGs crystallise apart: POP/OOP is
+//     eutectic (Zhang, Ueno, Miura & Sato, JAOCS 84, 2007); trilaurin forms
+//     eutectics with SOS (Yoshikawa et al., Molecules 25:5313, 2020); oleic
+//     acid with lauric, myristic or palmitic acid is completely immiscible in
+//     the solid (Inoue et al., Chem. Phys. Lipids 127:161, 2004).
+//   - Trans-monoene chains pack as straight chains, as saturated ones do:
+//     in OSO, OEO and OVO the 1,3-dioleoyl chains segregate "from the
+//     vaccinoyl, elaidoyl, or stearoyl chains into alternating layers", and a
+//     saturated or trans sn-2 chain between cis outer chains gives the same
+//     phases (Kodali, Atkinson, Redgrave & Small, J. Lipid Res. 28:403,
+//     1987); the β′ crystal structures of mixed palmitoyl, stearoyl and
+//     elaidoyl TAGs are of one type, double-chain-length layers in space group
+//     I2, as the saturated analogues (van Mechelen, Peschar & Schenk, Acta
+//     Cryst. B64:249, 2008). Their authors caution that little is known about
+//     the actual packing of trans chains beside saturated ones, and no binary
+//     phase diagram of a trans and a saturated TAG was available to us.
 //
 // Rule (ours, from that evidence): two TAGs belong to the same family when
-// they have the same number of cis-unsaturated chains and the same number of
-// trans-monoene chains, and their total acyl carbon numbers fall in the same
-// band of familyBandCarbons carbons centred on a monoacid TAG of an even
-// acid (…, 30, 36, 42, 48, 54, …; a band holds n − 2 … n + 2 for even
-// chains; the centring on monoacid TAGs is our choice, not fitted, and
-// TestFamilyRule pins it). So a family holds TAGs at most two acyl carbons
-// from its centre
+// they have the same number of cis-unsaturated chains (a chain with a cis
+// double bond, or an all-cis polyene) and their total acyl carbon numbers
+// fall in the same band of familyBandCarbons carbons centred on a monoacid
+// TAG of an even acid (…, 30, 36, 42, 48, 54, …; a band holds n − 2 … n + 2
+// for even chains; the centring on monoacid TAGs is our choice, not fitted,
+// and TestFamilyRule pins it). Saturated and trans chains count alike, as
+// straight chains, so PSS, PES and PEE of a hardened oil crystallise
+// together; their different melting points stay in the pure-TAG
+// properties (the trans term of the correlation). Trans dienes, as the
+// lumped "18:2 t" of hardening reports them, count as trans chains too: the
+// label does not say where a cis bend would be. So a family holds TAGs at
+// most two acyl carbons from its centre
 // — mixed crystals of near-isomorphous molecules — while monoacid TAGs two
 // carbons per chain apart, which the data show eutectic, always fall in
 // different families. The bands are fixed, not fitted: a species' family
@@ -52,42 +70,29 @@ const familyBandCarbons = 6
 
 // familyKey identifies a solid-solution family.
 type familyKey struct {
-	cis, trans uint8 // numbers of cis-unsaturated and trans-monoene chains
-	band       int16 // carbon-number band, centre = band × familyBandCarbons
+	cis  uint8 // number of cis-unsaturated chains
+	band int16 // carbon-number band, centre = band × familyBandCarbons
 }
 
 // familyClass is what a chain counts as in the family rule: 0 for a
-// saturated chain, transClass for a trans monoene, cisClass for a
-// cis-unsaturated chain. A TAG's family adds its chains' classes (so the
-// sum encodes both counts) and its carbon band; the builder's dense keys
-// and familyOf both derive from this one function.
+// straight chain (saturated or trans), 1 for a cis-unsaturated one. A
+// TAG's family adds its chains' classes (the number of cis chains) and its
+// carbon band; the builder's dense keys and familyOf both derive from this
+// one function.
 func familyClass(k chainKind) int {
 	switch k {
-	case kindSaturated:
+	case kindSaturated, kindTransMonoene, kindTransDiene:
 		return 0
-	case kindTransMonoene:
-		return transClass
 	default:
-		return cisClass
+		return 1
 	}
 }
-
-// Class weights: up to three trans chains fit below one cis chain.
-const (
-	transClass = 1
-	cisClass   = 4
-)
 
 // familyOf is the family of the TAG with chains c1, c2, c3.
 func familyOf(c1, c2, c3 chain) familyKey {
 	var k familyKey
 	for _, c := range [3]chain{c1, c2, c3} {
-		switch familyClass(c.kind) {
-		case transClass:
-			k.trans++
-		case cisClass:
-			k.cis++
-		}
+		k.cis += uint8(familyClass(c.kind))
 	}
 	n := c1.carbons + c2.carbons + c3.carbons
 	k.band = int16((n + familyBandCarbons/2) / familyBandCarbons)

@@ -250,12 +250,17 @@ type SpeciesShare struct {
 
 // Parameters echoes what a result was computed with, defaults filled.
 type Parameters struct {
-	Polymorph             Polymorph
-	SolidModel            SolidModel
-	Distribution          Distribution
-	SN2Estimate           SN2Estimate // zero for FullRandom
-	PoolFloorMoleFraction float64     // zero when pooling is off
-	SlipThresholdPercent  float64     // the threshold in force
+	Polymorph    Polymorph
+	SolidModel   SolidModel
+	Distribution Distribution
+	SN2Estimate  SN2Estimate // the rule used; zero for FullRandom
+	// SN2Chosen reports that SN2Estimate was chosen automatically, for
+	// SN2Reason; Class is the fat's class.
+	SN2Chosen             bool
+	SN2Reason             string
+	Class                 FatClass
+	PoolFloorMoleFraction float64 // zero when pooling is off
+	SlipThresholdPercent  float64 // the threshold in force
 	Calibration           Calibration
 }
 
@@ -291,6 +296,9 @@ type Result struct {
 	Parameters        Parameters
 	// Assumptions states the models used, in words.
 	Assumptions []string
+	// Uncertainty is how good the estimate typically is for a fat of this
+	// kind.
+	Uncertainty Uncertainty
 	Warnings    []chem.Warning
 }
 
@@ -364,6 +372,9 @@ func (f *Fat) Melt() (*Result, error) {
 	r.Parameters = f.parameters()
 	r.Assumptions = f.assumptions()
 	r.Warnings = slices.Clone(f.warnings)
+	var uw []chem.Warning
+	r.Uncertainty, uw = f.Uncertainty()
+	r.Warnings = append(r.Warnings, uw...)
 	if !ok {
 		r.Warnings = append(r.Warnings, chem.Warning{Code: WarnSlipUndefined, Message: fmt.Sprintf(
 			"the solid fat content stays below the slip threshold of %.3g %% down to %g °C; no slip melting point is reported",
@@ -379,8 +390,10 @@ func (f *Fat) parameters() Parameters {
 		PoolFloorMoleFraction: o.Composition.PoolFloorMoleFraction,
 		SlipThresholdPercent:  o.slipThreshold(), Calibration: o.Calibration,
 	}
+	c := f.composition
+	p.Class = c.Class
 	if o.Composition.Distribution == Positional {
-		p.SN2Estimate = o.Composition.SN2
+		p.SN2Estimate, p.SN2Chosen, p.SN2Reason = c.SN2Estimate, c.SN2Chosen, c.SN2Reason
 	}
 	if o.Composition.NoPooling {
 		p.PoolFloorMoleFraction = 0
@@ -391,7 +404,7 @@ func (f *Fat) parameters() Parameters {
 func (f *Fat) assumptions() []string {
 	o := f.opt
 	out := []string{
-		"TAG species: " + distributionWords(o.Composition) + "; sn-1 and sn-3 taken as equivalent (regio-isomers lumped)",
+		"TAG species: " + distributionWords(o.Composition.Distribution, f.composition) + "; sn-1 and sn-3 taken as equivalent (regio-isomers lumped)",
 		fmt.Sprintf("pure-TAG properties in the %s form from the fitted correlation (Wesdorp's structure, our coefficients), "+
 			"measured values used for %d species", o.Polymorph, f.overrides),
 		"solid-liquid equilibrium with an ideal liquid and " + modelWords(o.SolidModel),
@@ -403,14 +416,18 @@ func (f *Fat) assumptions() []string {
 	return out
 }
 
-func distributionWords(c CompositionOptions) string {
-	switch c.Distribution {
+func distributionWords(d Distribution, c *Composition) string {
+	switch d {
 	case FullRandom:
 		return "full random distribution"
 	case ExplicitTAGs:
 		return "TAG composition as given"
 	}
-	return "1,3-random-2-random distribution, sn-2 by the " + strings.ReplaceAll(c.SN2.String(), "_", " ")
+	words := "1,3-random-2-random distribution, sn-2 by the " + strings.ReplaceAll(c.SN2Estimate.String(), "_", " ")
+	if c.SN2Chosen {
+		words += ", chosen automatically for " + c.SN2Reason
+	}
+	return words
 }
 
 func modelWords(m SolidModel) string {
@@ -418,8 +435,8 @@ func modelWords(m SolidModel) string {
 	case IdealSolidSolution:
 		return "one ideal solid solution"
 	case SolidSolutionFamilies:
-		return "ideal solid solutions of near-isomorphous TAG families (same unsaturation, total acyl carbons " +
-			"within a 6-carbon band), mutually immiscible"
+		return "ideal solid solutions of near-isomorphous TAG families (same number of cis-unsaturated chains, trans " +
+			"chains packing with saturated ones; total acyl carbons within a 6-carbon band), mutually immiscible"
 	}
 	return "multiple pure solid phases (eutectic)"
 }

@@ -603,7 +603,14 @@ func TestFamilyRule(t *testing.T) {
 	require.False(t, same(PPP, [3]chain{sat(18), sat(18), sat(18)}), "PPP and SSS are eutectic")
 	require.False(t, same([3]chain{sat(16), ole, sat(16)}, [3]chain{ole, ole, sat(16)}), "POP and OOP are eutectic")
 	require.True(t, same([3]chain{sat(16), ole, sat(16)}, [3]chain{sat(16), ole, sat(14)}), "POP with POM")
-	require.False(t, same([3]chain{ela, ela, ela}, [3]chain{sat(18), sat(18), sat(18)}), "EEE and SSS")
+	// Trans chains pack as straight chains (Kodali et al. 1987; van
+	// Mechelen et al. 2008): with saturated TAGs of the same band, apart
+	// from cis ones.
+	require.True(t, same([3]chain{ela, ela, ela}, [3]chain{sat(18), sat(18), sat(18)}), "EEE with SSS")
+	require.True(t, same([3]chain{sat(16), ela, sat(18)}, [3]chain{sat(16), sat(18), sat(18)}), "PES with PSS")
+	require.False(t, same([3]chain{sat(18), ela, sat(18)}, [3]chain{sat(18), ole, sat(18)}), "SES and SOS")
+	tde := chain{carbons: 18, kind: kindTransDiene}
+	require.True(t, same([3]chain{sat(18), tde, sat(18)}, [3]chain{sat(18), ela, sat(18)}), "a trans diene counts as a trans chain")
 }
 
 // TestPrepareGroupsByFamilyRule checks that the mixture Prepare lays out
@@ -645,7 +652,7 @@ func TestSeedOilRuleWarnsOnPalmLikeFat(t *testing.T) {
 		}
 		return chem.Warning{}, false
 	}
-	seed, err := MeltProfile(palmLike(t), Options{})
+	seed, err := MeltProfile(palmLike(t), Options{Composition: CompositionOptions{SN2: SN2SeedOil}})
 	require.NoError(t, err)
 	w, ok := has(seed.Warnings)
 	require.True(t, ok, "%v", seed.Warnings)

@@ -147,8 +147,8 @@ func (o Options) validate() error {
 	if o.Composition.Distribution != Positional && o.Composition.Distribution != FullRandom {
 		bad.Invalid("must be sn13_random_sn2_random or full_random", "distribution")
 	}
-	if o.Composition.SN2 < SN2SeedOil || o.Composition.SN2 > SN2Enrichment {
-		bad.Invalid("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "sn2_estimate")
+	if o.Composition.SN2 < SN2SeedOil || o.Composition.SN2 > SN2Automatic {
+		bad.Invalid("must be automatic, seed_oil_rule, palm_rule, lauric_rule, lard_rule, tallow_rule, milk_fat_rule, hardened_rule, supplied or enrichment_factors", "sn2_estimate")
 	}
 	if f := o.Composition.PoolFloorMoleFraction; !(f > 0 && f <= 0.01) {
 		bad.Invalid("must be > 0 and <= 0.01", "pool_floor_mole_fraction")

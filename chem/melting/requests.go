@@ -26,7 +26,9 @@ type ModelInput struct {
 	SolidModel string
 	// Distribution: "sn13_random_sn2_random" (default) or "full_random".
 	Distribution string
-	// Sn2Estimate: "seed_oil_rule" (default) or "palm_rule".
+	// Sn2Estimate: "automatic" (default: the rule of the fat's class),
+	// "seed_oil_rule", "palm_rule", "lauric_rule", "lard_rule", "tallow_rule", "milk_fat_rule" or
+	// "hardened_rule".
 	Sn2Estimate string
 	// SlipThresholdPercent: the SFC at which the slip melting point is
 	// read, mass %; nil means DefaultSlipThresholdPercent.
@@ -150,7 +152,8 @@ var (
 	polymorphNames    = map[string]Polymorph{"": 0, "alpha": Alpha, "beta_prime": BetaPrime, "beta": Beta}
 	solidModelNames   = map[string]SolidModel{"": 0, "solid_solution_families": SolidSolutionFamilies, "multiple_pure_solids": MultiplePureSolids, "ideal_solid_solution": IdealSolidSolution}
 	distributionNames = map[string]Distribution{"": 0, "sn13_random_sn2_random": Positional, "full_random": FullRandom}
-	sn2EstimateNames  = map[string]SN2Estimate{"": 0, "seed_oil_rule": SN2SeedOil, "palm_rule": SN2Palm}
+	sn2EstimateNames  = map[string]SN2Estimate{"": 0, "automatic": SN2Automatic, "seed_oil_rule": SN2SeedOil, "palm_rule": SN2Palm,
+		"lauric_rule": SN2Lauric, "lard_rule": SN2Lard, "tallow_rule": SN2Tallow, "milk_fat_rule": SN2MilkFat, "hardened_rule": SN2Hardened}
 )
 
 // named reads an option name through its table, recording a malformed
@@ -195,7 +198,8 @@ func modelOptions(in *ModelInput, errs *chem.FieldErrors) Options {
 		"must be solid_solution_families, multiple_pure_solids or ideal_solid_solution", "solid_model")
 	opt.Composition.Distribution = named(distributionNames, in.Distribution, errs,
 		"must be sn13_random_sn2_random or full_random", "distribution")
-	opt.Composition.SN2 = named(sn2EstimateNames, in.Sn2Estimate, errs, "must be seed_oil_rule or palm_rule", "sn2_estimate")
+	opt.Composition.SN2 = named(sn2EstimateNames, in.Sn2Estimate, errs,
+		"must be automatic, seed_oil_rule, palm_rule, lauric_rule, lard_rule, tallow_rule, milk_fat_rule or hardened_rule", "sn2_estimate")
 	if in.SlipThresholdPercent != nil {
 		opt.SlipThresholdPercent = *in.SlipThresholdPercent
 	}

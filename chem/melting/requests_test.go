@@ -102,7 +102,8 @@ func TestResolveModel(t *testing.T) {
 // is reported at the request's own fields.
 func TestMeltWarningsPointIntoTheRequest(t *testing.T) {
 	cat := chem.NewCatalogue()
-	ans, err := Melt(cat, MeltingInput{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 45}, {Acid: "18:1", Percent: 45}, {Acid: "18:2", Percent: 10}}}})
+	ans, err := Melt(cat, MeltingInput{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 45}, {Acid: "18:1", Percent: 45}, {Acid: "18:2", Percent: 10}}},
+		ModelInput: ModelInput{Sn2Estimate: "seed_oil_rule"}})
 	require.NoError(t, err)
 	var paths [][]any
 	for _, w := range ans.Warnings {

@@ -33,11 +33,126 @@ const (
 	// components): b_i ∝ E_i·x_i, no acid above 3·x_i, acids with E_i = 0
 	// filling any remainder in proportion to x_i.
 	SN2Enrichment
+	// SN2Lauric is the lauric rule: the unsaturated acids take sn-2 first,
+	// lauric acid fills what they leave, and the other saturated acids only
+	// what is left after that. Pancreatic-lipase analyses found the saturated
+	// acids of vegetable fats exclusively at the outer positions except
+	// lauric acid in coconut oil, and the unsaturated acids predominantly at
+	// sn-2 [pub: Agric. Biol. Chem. 28(4):201, 1964, abstract]. No published
+	// sn-2 composition of a lauric oil was available to us, so the rule is
+	// the ordering that statement gives, not a fitted distribution: for a
+	// coconut oil it puts about half the lauric acid at sn-2.
+	SN2Lauric
+	// SN2Lard is the rule for pig fat: each acid's share of its chains at
+	// sn-2 as stereospecific analyses of lard report it (see [LardSN2]).
+	SN2Lard
+	// SN2Tallow is the rule for beef and mutton fat, likewise ([TallowSN2]).
+	SN2Tallow
+	// SN2MilkFat is the rule for milk fat, likewise ([MilkFatSN2]).
+	SN2MilkFat
+	// SN2Hardened is the rule for hardened oils: the sn-2 position holds the
+	// C18 chains, whatever hardening made of them. A seed-oil feed carries
+	// its unsaturated C18 acids at sn-2 (the seed-oil rule), and hardening
+	// barely moves acids between positions [pub: J. Japan Oil Chem. Soc.
+	// 20:10 (1971)], so the stearic and trans acids it forms at sn-2 stay
+	// there — which the seed-oil rule, applied to the product, would move
+	// out. (The feed's own stearic acid, at sn-1,3, is counted in with them;
+	// about 4 % of the chains of a soybean oil.)
+	SN2Hardened
+	// SN2Automatic chooses the estimate from the composition: the rule of
+	// the fat's [FatClass] (see automaticSN2). The chosen rule and the
+	// reason are reported.
+	SN2Automatic
 )
 
-// DefaultSN2Estimate is [SN2SeedOil], the seed-oil rule of the package documentation; choose
-// SN2Palm for palm oil and its fractions.
-const DefaultSN2Estimate = SN2SeedOil
+// DefaultSN2Estimate is [SN2Automatic]: the rule is chosen from the
+// composition, and named in the answer.
+const DefaultSN2Estimate = SN2Automatic
+
+// Published positional distributions, as sn-2 enrichment factors E = 3·D₂,
+// where D₂ is the fraction of an acid's chains found at sn-2 (E = 1 is a
+// random distribution). The rule gives b_i ∝ E_i·x_i, capped at 3·x_i
+// (waterFill), so it carries the measured tendencies over to a sample of
+// another composition.
+
+// LardSN2 is the sn-2 enrichment factor of an acid in pig fat, from the
+// positional distribution of lard [pub: Michalski M.C. et al., Prog. Lipid
+// Res. 52:354 (2013), Table 1, a compilation: of each acid's chains at sn-2,
+// palmitic 61 %, stearic 8 %, oleic 13 %, linoleic 26 %]. Assignments of
+// ours for the minor acids: myristic and shorter saturated acids as
+// palmitic (lard's myristic acid is also enriched at sn-2: sn-1 1 %, sn-2
+// 4 % of the chains, Ong A.S.H. & Goh S.H., Food Nutr. Bull. 23(1):11,
+// 2002, Table 2), C20 and longer saturated acids as stearic, other
+// monoenes as oleic, trienes and longer polyenes as linoleic.
+func LardSN2(a *chem.FattyAcid) float64 {
+	return positional(a, lardFactors)
+}
+
+// TallowSN2 is the sn-2 enrichment factor of an acid in beef or mutton
+// fat [pub: Michalski et al. 2013, Table 1: of each acid's chains at sn-2,
+// palmitic 21 %, stearic 18 %, oleic 42 %, linoleic 36 %]; minor acids are
+// assigned as for LardSN2.
+func TallowSN2(a *chem.FattyAcid) float64 {
+	return positional(a, tallowFactors)
+}
+
+// MilkFatSN2 is the sn-2 enrichment factor of an acid in milk fat, from a
+// stereospecific analysis of bovine milk fat [pub: Ong & Goh 2002, Table 2,
+// mol % at sn-1/sn-2/sn-3: 4:0 5/2.9/43.3, 6:0 3.0/4.8/10.8, 8:0
+// 0.9/2.3/2.2, 10:0 2.5/6.1/3.6, 12:0 3.1/6.0/3.5, 14:0 10.5/20.4/7.1,
+// 16:0 35.9/32.8/10.1, 18:0 14.7/6.4/4.0, 18:1 20.6/13.7/14.9, 18:2
+// 1.2/2.5/0.5], E = 3·sn2/(sn1 + sn2 + sn3). Odd saturated chains take the
+// factor of the even chain below them, trans and other monoenes the
+// oleic factor, trienes the linoleic one, C20 and longer saturated acids
+// the stearic one (ours).
+func MilkFatSN2(a *chem.FattyAcid) float64 {
+	return positional(a, milkFatFactors)
+}
+
+// positionalFactors are enrichment factors by chain group.
+type positionalFactors struct {
+	saturated map[int]float64 // by carbon number; missing ones take the nearest shorter entry
+	monoene   float64
+	polyene   float64
+}
+
+var (
+	lardFactors = positionalFactors{
+		saturated: map[int]float64{4: 1.83, 16: 1.83, 18: 0.24},
+		monoene:   0.39, polyene: 0.78,
+	}
+	tallowFactors = positionalFactors{
+		saturated: map[int]float64{4: 0.63, 16: 0.63, 18: 0.54},
+		monoene:   1.26, polyene: 1.08,
+	}
+	milkFatFactors = positionalFactors{
+		saturated: map[int]float64{
+			4: milkE(5, 2.9, 43.3), 6: milkE(3.0, 4.8, 10.8), 8: milkE(0.9, 2.3, 2.2), 10: milkE(2.5, 6.1, 3.6),
+			12: milkE(3.1, 6.0, 3.5), 14: milkE(10.5, 20.4, 7.1), 16: milkE(35.9, 32.8, 10.1), 18: milkE(14.7, 6.4, 4.0),
+		},
+		monoene: milkE(20.6, 13.7, 14.9), polyene: milkE(1.2, 2.5, 0.5),
+	}
+)
+
+// milkE is the enrichment factor of an acid from its mol % at the three
+// positions.
+func milkE(sn1, sn2, sn3 float64) float64 { return 3 * sn2 / (sn1 + sn2 + sn3) }
+
+func positional(a *chem.FattyAcid, f positionalFactors) float64 {
+	switch {
+	case a.DoubleBondCount == 1:
+		return f.monoene
+	case a.DoubleBondCount > 1:
+		return f.polyene
+	}
+	best, e := -1, 1.0
+	for c, v := range f.saturated {
+		if c <= a.Carbons && c > best {
+			best, e = c, v
+		}
+	}
+	return e
+}
 
 // String gives the API name.
 func (e SN2Estimate) String() string {
@@ -50,6 +165,18 @@ func (e SN2Estimate) String() string {
 		return "supplied"
 	case SN2Enrichment:
 		return "enrichment_factors"
+	case SN2Lauric:
+		return "lauric_rule"
+	case SN2Lard:
+		return "lard_rule"
+	case SN2Tallow:
+		return "tallow_rule"
+	case SN2MilkFat:
+		return "milk_fat_rule"
+	case SN2Hardened:
+		return "hardened_rule"
+	case SN2Automatic:
+		return "automatic"
 	default:
 		return "unknown"
 	}
@@ -138,12 +265,70 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 		}
 		copy(weight, opt.EnrichmentFactors)
 		return waterFill(x, weight), nil, nil
+	case SN2Lauric:
+		return priorityFill(x, func(i int) int {
+			a := p.Components[i].Acid
+			switch {
+			case a.DoubleBondCount > 0:
+				return 0
+			case a.Carbons == 12:
+				return 1
+			}
+			return 2
+		}), nil, nil
+	case SN2Lard, SN2Tallow, SN2MilkFat:
+		rule := map[SN2Estimate]func(*chem.FattyAcid) float64{SN2Lard: LardSN2, SN2Tallow: TallowSN2, SN2MilkFat: MilkFatSN2}[opt.SN2]
+		for i, comp := range p.Components {
+			weight[i] = rule(comp.Acid)
+		}
+		return waterFill(x, weight), nil, nil
+	case SN2Hardened:
+		for i, comp := range p.Components {
+			if comp.Acid.Carbons == 18 && comp.Acid.HydroxyPosition == 0 {
+				weight[i] = 1
+			}
+		}
+		return waterFill(x, weight), nil, nil
 	case SN2Supplied:
 		return suppliedSN2(p, x, opt.SN2Profile)
 	default:
 		return nil, nil, chem.Errorf(chem.KindInvalid, "unknown sn-2 estimate").
 			WithField("must be seed_oil_rule, palm_rule, supplied or enrichment_factors", "sn2_estimate")
 	}
+}
+
+// priorityFill fills sn-2 rank by rank (rank 0 first): the acids of a rank
+// share what is left in proportion to their amounts, each capped at 3·x_i
+// (all its chains at sn-2).
+func priorityFill(x []float64, rank func(i int) int) []float64 {
+	n := len(x)
+	b := make([]float64, n)
+	remaining := 1.0
+	for r := 0; remaining > 1e-15; r++ {
+		var total float64
+		more := false
+		for i := 0; i < n; i++ {
+			switch k := rank(i); {
+			case k == r:
+				total += x[i]
+			case k > r:
+				more = true
+			}
+		}
+		if total > 0 {
+			share := math.Min(remaining/(3*total), 1)
+			for i := 0; i < n; i++ {
+				if rank(i) == r {
+					b[i] = 3 * x[i] * share
+				}
+			}
+			remaining -= 3 * total * share
+		}
+		if !more {
+			break
+		}
+	}
+	return b
 }
 
 // waterFill distributes the sn-2 position: first among acids with positive

@@ -100,7 +100,7 @@ func PrepareTAGs(list []TAGAmount, opt Options, tol float64) (*Fat, error) {
 	// Positional pools of the composition, for reporting.
 	n := len(acids)
 	comp := &Composition{Acids: acids, Total: make([]float64, n), SN2: make([]float64, n), SN13: make([]float64, n),
-		Distribution: ExplicitTAGs}
+		Distribution: ExplicitTAGs, Class: ClassTAGList}
 	for _, k := range order {
 		comp.SN2[k.m] += z[k]
 		comp.SN13[k.o1] += z[k] / 2
