@@ -240,3 +240,34 @@ func TestForecastSlipTargetWarnsAtMeltingOptions(t *testing.T) {
 		require.Equal(t, "/melting/sn2_estimate", p)
 	}
 }
+
+// A selectively hardened soybean basestock near IV 66 melts, in practice,
+// around 36–46 °C [practice, memory: trade-typical slip melting points of
+// such basestocks]; the product of the forecast, posted as a plant would
+// post it to /v1/melting, lands there and is classed as hardened.
+func TestHardenedSoybeanForecastMelts(t *testing.T) {
+	got := forecast(t, `{"profile":`+soyFeed+`,"target":{"iodine_value":66},"catalyst":{"preset":"nickel_selective"}}`)
+	product, err := json.Marshal(got.ProductProfile)
+	require.NoError(t, err)
+	m := melt(t, `{"profile":`+string(product)+`}`)
+	require.NotNil(t, m.SlipMeltingPointC)
+	require.GreaterOrEqual(t, *m.SlipMeltingPointC, 36.0)
+	require.LessOrEqual(t, *m.SlipMeltingPointC, 46.0)
+	require.Equal(t, "hardened", m.Parameters.FatClass)
+	require.Equal(t, "hardened_rule", *m.Parameters.Sn2Estimate)
+	requireNonIncreasing(t, m.ReportingPoints)
+
+	// The slip-melting-point target stops the batch where the same model
+	// says the product melts, and says how good that is.
+	st := forecast(t, `{"profile":`+soyFeed+`,"target":{"slip_melting_point_c":`+fmt.Sprint(*m.SlipMeltingPointC)+`},"catalyst":{"preset":"nickel_selective"}}`)
+	require.NotNil(t, st.MeltingTarget)
+	require.InDelta(t, 66, st.MeltingTarget.IodineValue, 1.5)
+	require.Equal(t, "hardened_rule", st.MeltingTarget.Sn2Estimate)
+	require.Equal(t, "hardened", st.MeltingTarget.Uncertainty.FatClass)
+	require.Positive(t, st.MeltingTarget.Uncertainty.SlipMeltingPointK)
+	var uncertain bool
+	for _, w := range st.Warnings {
+		uncertain = uncertain || w.Code == "estimate_uncertain"
+	}
+	require.True(t, uncertain, "hardened fats are a class the model misses by more than 3 K: %v", st.Warnings)
+}

@@ -298,17 +298,45 @@ func TestPlausibility(t *testing.T) {
 	doc := plausibilityMarkdown(rs, loadBefore(t, fats))
 	table := uncertaintyGo(rs)
 	mdPath := filepath.Join("..", "..", "testdata", "melting", "PLAUSIBILITY.md")
+	valPath := filepath.Join("..", "..", "testdata", "melting", "VALIDATION.md")
+	val, err := os.ReadFile(valPath)
+	require.NoError(t, err)
+	section := plausibilitySection(rs, loadBefore(t, fats))
+	i, j := strings.Index(string(val), melting.PlausibilityBegin), strings.Index(string(val), melting.PlausibilityEnd)
+	require.True(t, i >= 0 && j > i, "VALIDATION.md has no plausibility markers; run go generate ./...")
+	spliced := string(val[:i]) + melting.PlausibilityBegin + section + string(val[j:])
 	if *melting.Update {
 		require.NoError(t, os.WriteFile(mdPath, []byte(doc), 0o644))
 		require.NoError(t, os.WriteFile("uncertainty_gen.go", []byte(table), 0o644))
+		require.NoError(t, os.WriteFile(valPath, []byte(spliced), 0o644))
 		return
 	}
+	require.Equal(t, spliced, string(val), "the plausibility section of VALIDATION.md is stale; run go generate ./...")
 	published, err := os.ReadFile(mdPath)
 	require.NoError(t, err)
 	require.Equal(t, string(published), doc, "PLAUSIBILITY.md is stale; run go generate ./...")
 	gen, err := os.ReadFile("uncertainty_gen.go")
 	require.NoError(t, err)
 	require.Equal(t, string(gen), table, "uncertainty_gen.go is stale; run go generate ./...")
+}
+
+// plausibilitySection is the before/after summary VALIDATION.md carries.
+func plausibilitySection(rs, before []plausibleResult) string {
+	var b strings.Builder
+	w := func(format string, a ...any) { fmt.Fprintf(&b, format, a...) }
+	s, bs := statsOf(rs), statsOf(before)
+	w("## Plausibility on the trade's typical values\n\n")
+	w("The validation cases above are the few with published slip melting points. The default model (automatic\n")
+	w("sn-2 rule) is also scored on %d fats with typical SFC curves and slip melting points, most of them\n", s.n)
+	w("recalled rather than published (plausibility.json; the full table is PLAUSIBILITY.md):\n\n")
+	w("| model | slip MAE K | largest slip error K | SFC MAE points | largest SFC error points |\n|---|---|---|---|---|\n")
+	w("| before (seed-oil rule by default, trans chains in families of their own) | %.1f | %.1f | %.1f | %.1f |\n", bs.slipMAE, bs.slipMax, bs.sfcMAE, bs.sfcMax)
+	w("| now | %.1f | %.1f | %.1f | %.1f |\n\n", s.slipMAE, s.slipMax, s.sfcMAE, s.sfcMax)
+	w("| fat | slip °C before | slip °C now | band °C |\n|---|---|---|---|\n")
+	for i, r := range rs {
+		w("| %s | %s | %s | %g–%g |\n", r.fat.Name, fmtNum(before[i].slip), fmtNum(r.slip), r.fat.Slip[0], r.fat.Slip[1])
+	}
+	return b.String()
 }
 
 func fmtNum(v float64) string {
