@@ -63,10 +63,14 @@ func (f *Fat) Uncertainty() (Uncertainty, []chem.Warning) {
 	u.SlipMeltingPointK, u.SFCPoints = te.slipK, te.sfcPoints
 	var warnings []chem.Warning
 	if !u.Calibrated && ok && (te.slipK > uncertainSlipK || te.sfcPoints > uncertainSFCPoints) {
+		fats := "fats"
+		if te.fats == 1 {
+			fats = "fat"
+		}
 		warnings = append(warnings, chem.Warning{Code: WarnEstimateUncertain, Message: fmt.Sprintf(
-			"the model typically misses %s fats by %.1f K in slip melting point and %.1f points of SFC "+
-				"(%d fats of the validation fixture); calibrate it on the plant's own measurements",
-			c, te.slipK, te.sfcPoints, te.fats)})
+			"for %s the model typically misses the slip melting point by %.1f K and the SFC by %.1f points "+
+				"(%d %s of the plausibility fixture); calibrate it on the plant's own measurements",
+			classNouns[c], te.slipK, te.sfcPoints, te.fats, fats)})
 	}
 	if c == ClassPalm && f.composition.Distribution != ExplicitTAGs {
 		p := chem.FromMoleFractions(f.composition.Acids, f.composition.Total, chem.BasisMole)
@@ -86,4 +90,12 @@ func (f *Fat) Uncertainty() (Uncertainty, []chem.Warning) {
 		}
 	}
 	return u, warnings
+}
+
+// classNouns name the classes in warnings.
+var classNouns = map[FatClass]string{
+	ClassSeedOil: "seed oils", ClassPalm: "palm fats", ClassLauric: "lauric fats",
+	ClassCocoaButterType: "cocoa-butter-type fats", ClassLard: "lard", ClassTallow: "tallow",
+	ClassMilkFat: "milk fat", ClassHardened: "hardened fats", ClassInteresterified: "interesterified fats",
+	ClassTAGList: "fats given as TAGs",
 }
