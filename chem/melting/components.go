@@ -77,8 +77,8 @@ func (f *Fat) newBuilder(pr *prepared) *builder {
 		bd.acidMass[i] = ac.MolarMass()
 		maxC = max(maxC, pr.chains[i].carbons)
 	}
-	// Dense family key cis·nb + band (see familyOf), a sum of
-	// per-chain codes plus the band. Only the families model uses families;
+	// Dense family key (cis + 4·poly)·nb + band (see familyOf), a sum of
+	// per-chain codes plus the band (at most 3 + 4·3 = 15 class values). Only the families model uses families;
 	// the other models pool by melting point alone, as one family.
 	nb := (3*maxC+familyBandCarbons/2)/familyBandCarbons + 1
 	bd.grouped = f.opt.SolidModel == SolidSolutionFamilies

@@ -45,25 +45,40 @@ import (
 //     the actual packing of trans chains beside saturated ones, and no binary
 //     phase diagram of a trans and a saturated TAG was available to us.
 //
+//   - Within one unsaturation count, which cis chain matters: SOS and SLS
+//     form solid solutions in α but immiscible phases in β′ and β₂ below
+//     30 % SLS (JAOCS, doi 10.1007/s11746-002-0535-1, abstract).
+//   - Where the cis chain sits does not separate TAGs: POP and PPO form a
+//     1:1 molecular compound, "giving rise to two monotectic phases of
+//     PPO/compound and compound/POP" (Minato, Ueno, Smith, Amemiya & Sato,
+//     J. Phys. Chem. B 101:3498, 1997), and OOP/OPO forms compounds in
+//     metastable forms (Bayés-García, Calvet, Cuevas-Diarte, Ueno & Sato,
+//     J. Phys. Chem. B 119:4417, 2015). A compound is a crystal holding both
+//     molecules, so one mixed crystal is nearer to it than two separate
+//     ones; the compound's own stability is not modelled.
+//
 // Rule (ours, from that evidence): two TAGs belong to the same family when
 // they have the same number of cis-unsaturated chains (a chain with a cis
-// double bond, or an all-cis polyene) and their total acyl carbon numbers
-// fall in the same band of familyBandCarbons carbons centred on a monoacid
-// TAG of an even acid (…, 30, 36, 42, 48, 54, …; a band holds n − 2 … n + 2
-// for even chains; the centring on monoacid TAGs is our choice, not fitted,
-// and TestFamilyRule pins it). Saturated and trans chains count alike, as
-// straight chains, so PSS, PES and PEE of a hardened oil crystallise
-// together; their different melting points stay in the pure-TAG
-// properties (the trans term of the correlation). Trans dienes, as the
-// lumped "18:2 t" of hardening reports them, count as trans chains too: the
-// label does not say where a cis bend would be. So a family holds TAGs at
-// most two acyl carbons from its centre
+// double bond, or an all-cis polyene), the same number of those that are
+// polyenes, and their total acyl carbon numbers fall in the same band of
+// familyBandCarbons carbons centred on a monoacid TAG of an even acid (…,
+// 30, 36, 42, 48, 54, …; a band holds n − 2 … n + 2 for even chains; the
+// centring on monoacid TAGs is our choice, not fitted, and TestFamilyRule
+// pins it). Saturated and trans chains count alike, as straight chains, so
+// PSS, PES and PEE of a hardened oil crystallise together; their different
+// melting points stay in the pure-TAG properties (the trans term of the
+// correlation). Trans dienes, as the lumped "18:2 t" of hardening reports
+// them, count as trans chains too: the label does not say where a cis bend
+// would be. So a family holds TAGs at most two acyl carbons from its centre
 // — mixed crystals of near-isomorphous molecules — while monoacid TAGs two
 // carbons per chain apart, which the data show eutectic, always fall in
 // different families. The bands are fixed, not fitted: a species' family
 // does not depend on the rest of the fat, so the model stays continuous
 // along a composition path. Each family is an ideal solid solution; the
-// families and the liquid are mutually immiscible.
+// families and the liquid are mutually immiscible. Cocoa butter's form V,
+// which behaves as one POS-type phase holding POP, POS and SOS (Wille &
+// Lutton, JAOCS 43:491, 1966), is a metastable form the rule does not
+// describe: POP falls in the band below POS and SOS.
 
 // familyBandCarbons is the width of a carbon-number band (see above).
 const familyBandCarbons = 6
@@ -71,28 +86,37 @@ const familyBandCarbons = 6
 // familyKey identifies a solid-solution family.
 type familyKey struct {
 	cis  uint8 // number of cis-unsaturated chains
+	poly uint8 // how many of them are polyenes
 	band int16 // carbon-number band, centre = band × familyBandCarbons
 }
 
 // familyClass is what a chain counts as in the family rule: 0 for a
-// straight chain (saturated or trans), 1 for a cis-unsaturated one. A
-// TAG's family adds its chains' classes (the number of cis chains) and its
-// carbon band; the builder's dense keys and familyOf both derive from this
-// one function.
+// straight chain (saturated or trans), 1 for a cis monoene, 5 for a cis
+// polyene (one cis chain plus polyClass). A TAG's family adds its chains'
+// classes, which encodes both counts (at most three chains, so the cis
+// count never reaches polyClass), and its carbon band; the builder's dense
+// keys and familyOf both derive from this one function.
 func familyClass(k chainKind) int {
 	switch k {
 	case kindSaturated, kindTransMonoene, kindTransDiene:
 		return 0
-	default:
+	case kindCisMonoene:
 		return 1
+	default:
+		return 1 + polyClass
 	}
 }
+
+// polyClass is the weight of a polyene in familyClass.
+const polyClass = 4
 
 // familyOf is the family of the TAG with chains c1, c2, c3.
 func familyOf(c1, c2, c3 chain) familyKey {
 	var k familyKey
 	for _, c := range [3]chain{c1, c2, c3} {
-		k.cis += uint8(familyClass(c.kind))
+		code := familyClass(c.kind)
+		k.cis += uint8(code % polyClass)
+		k.poly += uint8(code / polyClass)
 	}
 	n := c1.carbons + c2.carbons + c3.carbons
 	k.band = int16((n + familyBandCarbons/2) / familyBandCarbons)

@@ -227,7 +227,7 @@ func sn2Composition(p *chem.Profile, x []float64, opt CompositionOptions) ([]flo
 				"the seed-oil sn-2 rule keeps palmitic acid out of sn-2, but this fat has %.1f mol %% palmitic acid, "+
 					"as palm oil and its fractions do, which carry some at sn-2; for them use sn2_estimate palm_rule "+
 					"or a measured sn2_profile (with the seed-oil rule a palm oil's slip melting point comes out "+
-					"about 11 K low)", 100*palmitic),
+					"about 13 K low)", 100*palmitic),
 				Path: []any{"sn2_estimate"}})
 		}
 		return waterFill(x, weight), warn, nil
