@@ -27,6 +27,7 @@ type FattyAcidBody struct {
 	OmegaPosition                   *int       `json:"omega_position"`
 	OmegaFamily                     *int       `json:"omega_family"`
 	HydroxyPosition                 *int       `json:"hydroxy_position"`
+	Branch                          *string    `json:"branch"`
 	CommonName                      string     `json:"common_name"`
 	SystematicName                  string     `json:"systematic_name"`
 	Names                           []string   `json:"names"`
@@ -49,6 +50,15 @@ func positive(n int) *int {
 	return &n
 }
 
+// branchName is the contract's name of a branch, nil for a straight chain.
+func branchName(b chem.Branch) *string {
+	if b == chem.Unbranched {
+		return nil
+	}
+	s := b.String()
+	return &s
+}
+
 func fromAcid(a *chem.FattyAcid) FattyAcidBody {
 	b := FattyAcidBody{
 		ID:                              a.ID,
@@ -62,6 +72,7 @@ func fromAcid(a *chem.FattyAcid) FattyAcidBody {
 		OmegaPosition:                   positive(a.OmegaPosition()),
 		OmegaFamily:                     positive(a.OmegaFamily()),
 		HydroxyPosition:                 positive(a.HydroxyPosition),
+		Branch:                          branchName(a.Branch),
 		CommonName:                      a.CommonName,
 		SystematicName:                  a.SystematicName,
 		Names:                           append([]string{}, a.Names...),

@@ -61,8 +61,35 @@ func (c Class) String() string {
 	}
 }
 
-// FattyAcid is one catalogue entry: an unbranched carboxylic acid with its
-// structure. Molar masses are derived from the formula, never stored.
+// Branch is the methyl branching of a saturated chain.
+type Branch int
+
+const (
+	// Unbranched is the straight chain of almost every food fatty acid.
+	Unbranched Branch = iota
+	// Iso carries a methyl group on the second carbon from the methyl end
+	// (ω-1), as in 13-methyltetradecanoic acid (iso-15:0).
+	Iso
+	// Anteiso carries it on the third (ω-2), as in 12-methyltetradecanoic
+	// acid (anteiso-15:0).
+	Anteiso
+)
+
+// String gives the word used in identifiers ("iso", "anteiso"; "" for a
+// straight chain).
+func (b Branch) String() string {
+	switch b {
+	case Iso:
+		return "iso"
+	case Anteiso:
+		return "anteiso"
+	}
+	return ""
+}
+
+// FattyAcid is one catalogue entry: a carboxylic acid with its structure
+// (straight-chain, or with the iso or anteiso methyl branch of ruminant and
+// fish fats). Molar masses are derived from the formula, never stored.
 type FattyAcid struct {
 	// ID is the canonical label, e.g. "16:0", "18:1 c9", "18:2 c9,c12",
 	// "18:1 t" (trans isomers, positions not resolved), "18:1 c9 12-OH".
@@ -79,6 +106,10 @@ type FattyAcid struct {
 	LumpedGeometry Geometry
 	// HydroxyPosition is the carbon carrying a hydroxy group, 0 for none.
 	HydroxyPosition int
+	// Branch is the methyl branch of a branched-chain acid; Carbons counts
+	// every carbon, the branch included, so the formula is that of the
+	// straight-chain isomer.
+	Branch Branch
 	// CommonName is the trivial name, e.g. "oleic"; empty when none is usual.
 	CommonName string
 	// SystematicName is the IUPAC name of the acid.
@@ -209,9 +240,12 @@ func (a *FattyAcid) Shorthand() string {
 
 // canonicalID builds the identifier from the structure so that IDs and
 // structures cannot drift apart.
-func canonicalID(carbons, d int, bonds []DoubleBond, lumped Geometry, hydroxy int) string {
+func canonicalID(carbons, d int, bonds []DoubleBond, lumped Geometry, hydroxy int, branch Branch) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%d:%d", carbons, d)
+	if branch != Unbranched {
+		b.WriteString(" " + branch.String())
+	}
 	if len(bonds) > 0 {
 		b.WriteByte(' ')
 		for i, db := range bonds {

@@ -55,6 +55,7 @@ func (c *Catalogue) rememberLabel(label string, r Resolution) {
 type groupKey struct {
 	carbons, d int
 	hydroxy    bool
+	branch     Branch
 }
 
 // acidDef is one row of the built-in catalogue. bonds uses the canonical
@@ -68,81 +69,99 @@ type acidDef struct {
 	systematic string
 	names      []string
 	preferred  bool
+	branch     Branch
 }
 
 // builtinAcids is the reference list. Structures follow IUPAC-IUBMB lipid
 // nomenclature; names are the trade's usual trivial names.
 var builtinAcids = []acidDef{
 	// Saturated, C4–C24 including the odd chains GC profiles report.
-	{4, 0, "", 0, "butyric", "butanoic acid", nil, true},
-	{6, 0, "", 0, "caproic", "hexanoic acid", nil, true},
-	{8, 0, "", 0, "caprylic", "octanoic acid", nil, true},
-	{10, 0, "", 0, "capric", "decanoic acid", nil, true},
-	{11, 0, "", 0, "undecylic", "undecanoic acid", []string{"undecanoic"}, true},
-	{12, 0, "", 0, "lauric", "dodecanoic acid", nil, true},
-	{13, 0, "", 0, "tridecylic", "tridecanoic acid", []string{"tridecanoic"}, true},
-	{14, 0, "", 0, "myristic", "tetradecanoic acid", nil, true},
-	{15, 0, "", 0, "pentadecylic", "pentadecanoic acid", []string{"pentadecanoic"}, true},
-	{16, 0, "", 0, "palmitic", "hexadecanoic acid", nil, true},
-	{17, 0, "", 0, "margaric", "heptadecanoic acid", []string{"heptadecanoic"}, true},
-	{18, 0, "", 0, "stearic", "octadecanoic acid", nil, true},
-	{19, 0, "", 0, "nonadecylic", "nonadecanoic acid", []string{"nonadecanoic"}, true},
-	{20, 0, "", 0, "arachidic", "icosanoic acid", []string{"eicosanoic"}, true},
-	{21, 0, "", 0, "heneicosylic", "henicosanoic acid", []string{"heneicosanoic"}, true},
-	{22, 0, "", 0, "behenic", "docosanoic acid", nil, true},
-	{23, 0, "", 0, "tricosylic", "tricosanoic acid", []string{"tricosanoic"}, true},
-	{24, 0, "", 0, "lignoceric", "tetracosanoic acid", nil, true},
+	{4, 0, "", 0, "butyric", "butanoic acid", nil, true, Unbranched},
+	{6, 0, "", 0, "caproic", "hexanoic acid", nil, true, Unbranched},
+	{8, 0, "", 0, "caprylic", "octanoic acid", nil, true, Unbranched},
+	{10, 0, "", 0, "capric", "decanoic acid", nil, true, Unbranched},
+	{11, 0, "", 0, "undecylic", "undecanoic acid", []string{"undecanoic"}, true, Unbranched},
+	{12, 0, "", 0, "lauric", "dodecanoic acid", nil, true, Unbranched},
+	{13, 0, "", 0, "tridecylic", "tridecanoic acid", []string{"tridecanoic"}, true, Unbranched},
+	{14, 0, "", 0, "myristic", "tetradecanoic acid", nil, true, Unbranched},
+	{15, 0, "", 0, "pentadecylic", "pentadecanoic acid", []string{"pentadecanoic"}, true, Unbranched},
+	{16, 0, "", 0, "palmitic", "hexadecanoic acid", nil, true, Unbranched},
+	{17, 0, "", 0, "margaric", "heptadecanoic acid", []string{"heptadecanoic"}, true, Unbranched},
+	{18, 0, "", 0, "stearic", "octadecanoic acid", nil, true, Unbranched},
+	{19, 0, "", 0, "nonadecylic", "nonadecanoic acid", []string{"nonadecanoic"}, true, Unbranched},
+	{20, 0, "", 0, "arachidic", "icosanoic acid", []string{"eicosanoic"}, true, Unbranched},
+	{21, 0, "", 0, "heneicosylic", "henicosanoic acid", []string{"heneicosanoic"}, true, Unbranched},
+	{22, 0, "", 0, "behenic", "docosanoic acid", nil, true, Unbranched},
+	{23, 0, "", 0, "tricosylic", "tricosanoic acid", []string{"tricosanoic"}, true, Unbranched},
+	{24, 0, "", 0, "lignoceric", "tetracosanoic acid", nil, true, Unbranched},
+	// Branched saturated acids of ruminant, dairy and fish fats
+	// (IUPAC names; iso = ω-1 methyl, anteiso = ω-2 methyl).
+	{14, 0, "", 0, "", "12-methyltridecanoic acid", []string{"isomyristic"}, true, Iso},
+	{15, 0, "", 0, "", "13-methyltetradecanoic acid", []string{"isopentadecanoic"}, true, Iso},
+	{15, 0, "", 0, "", "12-methyltetradecanoic acid", []string{"anteisopentadecanoic"}, true, Anteiso},
+	{16, 0, "", 0, "", "14-methylpentadecanoic acid", []string{"isopalmitic"}, true, Iso},
+	{17, 0, "", 0, "", "15-methylhexadecanoic acid", []string{"isoheptadecanoic"}, true, Iso},
+	{17, 0, "", 0, "", "14-methylhexadecanoic acid", []string{"anteisoheptadecanoic"}, true, Anteiso},
 
 	// Monoenes.
-	{10, 1, "c9", 0, "caproleic", "(9Z)-dec-9-enoic acid", nil, true},
-	{14, 1, "c9", 0, "myristoleic", "(9Z)-tetradec-9-enoic acid", nil, true},
-	{16, 1, "c7", 0, "hypogeic", "(7Z)-hexadec-7-enoic acid", nil, false},
-	{16, 1, "c9", 0, "palmitoleic", "(9Z)-hexadec-9-enoic acid", nil, true},
-	{16, 1, "t9", 0, "palmitelaidic", "(9E)-hexadec-9-enoic acid", nil, false},
-	{16, 1, "t", 0, "", "trans-hexadecenoic acids, positions not resolved", []string{"trans-palmitoleic"}, false},
-	{17, 1, "c10", 0, "", "(10Z)-heptadec-10-enoic acid", []string{"heptadecenoic", "margaroleic"}, true},
-	{18, 1, "c6", 0, "petroselinic", "(6Z)-octadec-6-enoic acid", nil, false},
-	{18, 1, "c9", 0, "oleic", "(9Z)-octadec-9-enoic acid", nil, true},
-	{18, 1, "t9", 0, "elaidic", "(9E)-octadec-9-enoic acid", nil, false},
-	{18, 1, "c11", 0, "cis-vaccenic", "(11Z)-octadec-11-enoic acid", []string{"asclepic"}, false},
+	{10, 1, "c9", 0, "caproleic", "(9Z)-dec-9-enoic acid", nil, true, Unbranched},
+	{12, 1, "c9", 0, "lauroleic", "(9Z)-dodec-9-enoic acid", nil, true, Unbranched},
+	{14, 1, "c9", 0, "myristoleic", "(9Z)-tetradec-9-enoic acid", nil, true, Unbranched},
+	{16, 1, "c7", 0, "hypogeic", "(7Z)-hexadec-7-enoic acid", nil, false, Unbranched},
+	{16, 1, "c9", 0, "palmitoleic", "(9Z)-hexadec-9-enoic acid", nil, true, Unbranched},
+	{16, 1, "t9", 0, "palmitelaidic", "(9E)-hexadec-9-enoic acid", nil, false, Unbranched},
+	{16, 1, "t", 0, "", "trans-hexadecenoic acids, positions not resolved", []string{"trans-palmitoleic"}, false, Unbranched},
+	{17, 1, "c10", 0, "", "(10Z)-heptadec-10-enoic acid", []string{"heptadecenoic", "margaroleic"}, true, Unbranched},
+	{18, 1, "c6", 0, "petroselinic", "(6Z)-octadec-6-enoic acid", nil, false, Unbranched},
+	{18, 1, "c9", 0, "oleic", "(9Z)-octadec-9-enoic acid", nil, true, Unbranched},
+	{18, 1, "t6", 0, "petroselaidic", "(6E)-octadec-6-enoic acid", nil, false, Unbranched},
+	{18, 1, "t7", 0, "", "(7E)-octadec-7-enoic acid", nil, false, Unbranched},
+	{18, 1, "t8", 0, "", "(8E)-octadec-8-enoic acid", nil, false, Unbranched},
+	{18, 1, "t9", 0, "elaidic", "(9E)-octadec-9-enoic acid", nil, false, Unbranched},
+	{18, 1, "t10", 0, "", "(10E)-octadec-10-enoic acid", nil, false, Unbranched},
+	{18, 1, "c11", 0, "cis-vaccenic", "(11Z)-octadec-11-enoic acid", []string{"asclepic"}, false, Unbranched},
 	// "Vaccenic" alone is used for both the trans-11 and the cis-11 acid, so
 	// only the qualified names are accepted.
-	{18, 1, "t11", 0, "trans-vaccenic", "(11E)-octadec-11-enoic acid", nil, false},
-	{18, 1, "t", 0, "", "trans-octadecenoic acids, positions not resolved", []string{"trans-oleic", "total trans 18:1"}, false},
-	{20, 1, "c9", 0, "gadoleic", "(9Z)-icos-9-enoic acid", nil, false},
-	{20, 1, "c11", 0, "gondoic", "(11Z)-icos-11-enoic acid", []string{"eicosenoic"}, true},
-	{20, 1, "t", 0, "", "trans-icosenoic acids, positions not resolved", nil, false},
-	{22, 1, "c11", 0, "cetoleic", "(11Z)-docos-11-enoic acid", nil, false},
-	{22, 1, "c13", 0, "erucic", "(13Z)-docos-13-enoic acid", nil, true},
-	{22, 1, "t", 0, "", "trans-docosenoic acids, positions not resolved", nil, false},
-	{24, 1, "c15", 0, "nervonic", "(15Z)-tetracos-15-enoic acid", nil, true},
-	{18, 1, "c9", 12, "ricinoleic", "(9Z,12R)-12-hydroxyoctadec-9-enoic acid", nil, true},
+	{18, 1, "t11", 0, "trans-vaccenic", "(11E)-octadec-11-enoic acid", nil, false, Unbranched},
+	{18, 1, "t", 0, "", "trans-octadecenoic acids, positions not resolved", []string{"trans-oleic", "total trans 18:1"}, false, Unbranched},
+	{20, 1, "c9", 0, "gadoleic", "(9Z)-icos-9-enoic acid", nil, false, Unbranched},
+	{20, 1, "c11", 0, "gondoic", "(11Z)-icos-11-enoic acid", []string{"eicosenoic"}, true, Unbranched},
+	{20, 1, "t", 0, "", "trans-icosenoic acids, positions not resolved", nil, false, Unbranched},
+	{22, 1, "c11", 0, "cetoleic", "(11Z)-docos-11-enoic acid", nil, false, Unbranched},
+	{22, 1, "c13", 0, "erucic", "(13Z)-docos-13-enoic acid", nil, true, Unbranched},
+	{22, 1, "t", 0, "", "trans-docosenoic acids, positions not resolved", nil, false, Unbranched},
+	{24, 1, "c15", 0, "nervonic", "(15Z)-tetracos-15-enoic acid", nil, true, Unbranched},
+	{18, 1, "c9", 12, "ricinoleic", "(9Z,12R)-12-hydroxyoctadec-9-enoic acid", nil, true, Unbranched},
 
 	// Dienes.
-	{18, 2, "c9,c12", 0, "linoleic", "(9Z,12Z)-octadeca-9,12-dienoic acid", nil, true},
-	{18, 2, "t9,t12", 0, "linoelaidic", "(9E,12E)-octadeca-9,12-dienoic acid", nil, false},
-	{18, 2, "c9,t12", 0, "", "(9Z,12E)-octadeca-9,12-dienoic acid", nil, false},
-	{18, 2, "t9,c12", 0, "", "(9E,12Z)-octadeca-9,12-dienoic acid", nil, false},
-	{18, 2, "c9,t11", 0, "rumenic", "(9Z,11E)-octadeca-9,11-dienoic acid", nil, false},
-	{18, 2, "t10,c12", 0, "", "(10E,12Z)-octadeca-10,12-dienoic acid", nil, false},
-	{18, 2, "t", 0, "", "trans-octadecadienoic acids, positions not resolved", []string{"trans-linoleic"}, false},
-	{20, 2, "c11,c14", 0, "", "(11Z,14Z)-icosa-11,14-dienoic acid", []string{"eicosadienoic"}, true},
-	{22, 2, "c13,c16", 0, "", "(13Z,16Z)-docosa-13,16-dienoic acid", []string{"docosadienoic"}, true},
+	{16, 2, "c9,c12", 0, "", "(9Z,12Z)-hexadeca-9,12-dienoic acid", []string{"hexadecadienoic"}, true, Unbranched},
+	{18, 2, "c9,c12", 0, "linoleic", "(9Z,12Z)-octadeca-9,12-dienoic acid", nil, true, Unbranched},
+	{18, 2, "t9,t12", 0, "linoelaidic", "(9E,12E)-octadeca-9,12-dienoic acid", nil, false, Unbranched},
+	{18, 2, "c9,t12", 0, "", "(9Z,12E)-octadeca-9,12-dienoic acid", nil, false, Unbranched},
+	{18, 2, "t9,c12", 0, "", "(9E,12Z)-octadeca-9,12-dienoic acid", nil, false, Unbranched},
+	{18, 2, "c9,t11", 0, "rumenic", "(9Z,11E)-octadeca-9,11-dienoic acid", nil, false, Unbranched},
+	{18, 2, "t10,c12", 0, "", "(10E,12Z)-octadeca-10,12-dienoic acid", nil, false, Unbranched},
+	{18, 2, "t", 0, "", "trans-octadecadienoic acids, positions not resolved", []string{"trans-linoleic"}, false, Unbranched},
+	{20, 2, "c11,c14", 0, "", "(11Z,14Z)-icosa-11,14-dienoic acid", []string{"eicosadienoic"}, true, Unbranched},
+	{22, 2, "c13,c16", 0, "", "(13Z,16Z)-docosa-13,16-dienoic acid", []string{"docosadienoic"}, true, Unbranched},
 
 	// Trienes and higher.
-	{18, 3, "c6,c9,c12", 0, "gamma-linolenic", "(6Z,9Z,12Z)-octadeca-6,9,12-trienoic acid", []string{"gla"}, false},
-	{18, 3, "c9,c12,c15", 0, "alpha-linolenic", "(9Z,12Z,15Z)-octadeca-9,12,15-trienoic acid", []string{"linolenic", "ala"}, true},
-	{18, 3, "t", 0, "", "trans-octadecatrienoic acids, positions not resolved", []string{"trans-linolenic"}, false},
-	{20, 3, "c8,c11,c14", 0, "dihomo-gamma-linolenic", "(8Z,11Z,14Z)-icosa-8,11,14-trienoic acid", []string{"dgla"}, false},
-	{20, 3, "c11,c14,c17", 0, "", "(11Z,14Z,17Z)-icosa-11,14,17-trienoic acid", nil, false},
-	{18, 4, "c6,c9,c12,c15", 0, "stearidonic", "(6Z,9Z,12Z,15Z)-octadeca-6,9,12,15-tetraenoic acid", []string{"sda"}, true},
-	{20, 4, "c5,c8,c11,c14", 0, "arachidonic", "(5Z,8Z,11Z,14Z)-icosa-5,8,11,14-tetraenoic acid", []string{"ara", "aa"}, true},
-	{20, 4, "c8,c11,c14,c17", 0, "", "(8Z,11Z,14Z,17Z)-icosa-8,11,14,17-tetraenoic acid", nil, false},
-	{20, 5, "c5,c8,c11,c14,c17", 0, "eicosapentaenoic", "(5Z,8Z,11Z,14Z,17Z)-icosa-5,8,11,14,17-pentaenoic acid", []string{"epa", "timnodonic"}, true},
-	{22, 4, "c7,c10,c13,c16", 0, "adrenic", "(7Z,10Z,13Z,16Z)-docosa-7,10,13,16-tetraenoic acid", nil, true},
-	{22, 5, "c4,c7,c10,c13,c16", 0, "osbond", "(4Z,7Z,10Z,13Z,16Z)-docosa-4,7,10,13,16-pentaenoic acid", []string{"dpa n-6"}, false},
-	{22, 5, "c7,c10,c13,c16,c19", 0, "clupanodonic", "(7Z,10Z,13Z,16Z,19Z)-docosa-7,10,13,16,19-pentaenoic acid", []string{"dpa n-3"}, false},
-	{22, 6, "c4,c7,c10,c13,c16,c19", 0, "docosahexaenoic", "(4Z,7Z,10Z,13Z,16Z,19Z)-docosa-4,7,10,13,16,19-hexaenoic acid", []string{"dha", "cervonic"}, true},
+	{16, 3, "c6,c9,c12", 0, "", "(6Z,9Z,12Z)-hexadeca-6,9,12-trienoic acid", []string{"hexadecatrienoic"}, true, Unbranched},
+	{16, 4, "c6,c9,c12,c15", 0, "", "(6Z,9Z,12Z,15Z)-hexadeca-6,9,12,15-tetraenoic acid", []string{"hexadecatetraenoic"}, true, Unbranched},
+	{18, 3, "c6,c9,c12", 0, "gamma-linolenic", "(6Z,9Z,12Z)-octadeca-6,9,12-trienoic acid", []string{"gla"}, false, Unbranched},
+	{18, 3, "c9,c12,c15", 0, "alpha-linolenic", "(9Z,12Z,15Z)-octadeca-9,12,15-trienoic acid", []string{"linolenic", "ala"}, true, Unbranched},
+	{18, 3, "t", 0, "", "trans-octadecatrienoic acids, positions not resolved", []string{"trans-linolenic"}, false, Unbranched},
+	{20, 3, "c8,c11,c14", 0, "dihomo-gamma-linolenic", "(8Z,11Z,14Z)-icosa-8,11,14-trienoic acid", []string{"dgla"}, false, Unbranched},
+	{20, 3, "c11,c14,c17", 0, "", "(11Z,14Z,17Z)-icosa-11,14,17-trienoic acid", nil, false, Unbranched},
+	{18, 4, "c6,c9,c12,c15", 0, "stearidonic", "(6Z,9Z,12Z,15Z)-octadeca-6,9,12,15-tetraenoic acid", []string{"sda"}, true, Unbranched},
+	{20, 4, "c5,c8,c11,c14", 0, "arachidonic", "(5Z,8Z,11Z,14Z)-icosa-5,8,11,14-tetraenoic acid", []string{"ara", "aa"}, true, Unbranched},
+	{20, 4, "c8,c11,c14,c17", 0, "", "(8Z,11Z,14Z,17Z)-icosa-8,11,14,17-tetraenoic acid", nil, false, Unbranched},
+	{20, 5, "c5,c8,c11,c14,c17", 0, "eicosapentaenoic", "(5Z,8Z,11Z,14Z,17Z)-icosa-5,8,11,14,17-pentaenoic acid", []string{"epa", "timnodonic"}, true, Unbranched},
+	{21, 5, "c6,c9,c12,c15,c18", 0, "", "(6Z,9Z,12Z,15Z,18Z)-henicosa-6,9,12,15,18-pentaenoic acid", []string{"heneicosapentaenoic", "hpa"}, true, Unbranched},
+	{22, 4, "c7,c10,c13,c16", 0, "adrenic", "(7Z,10Z,13Z,16Z)-docosa-7,10,13,16-tetraenoic acid", nil, true, Unbranched},
+	{22, 5, "c4,c7,c10,c13,c16", 0, "osbond", "(4Z,7Z,10Z,13Z,16Z)-docosa-4,7,10,13,16-pentaenoic acid", []string{"dpa n-6"}, false, Unbranched},
+	{22, 5, "c7,c10,c13,c16,c19", 0, "clupanodonic", "(7Z,10Z,13Z,16Z,19Z)-docosa-7,10,13,16,19-pentaenoic acid", []string{"dpa n-3"}, false, Unbranched},
+	{22, 6, "c4,c7,c10,c13,c16,c19", 0, "docosahexaenoic", "(4Z,7Z,10Z,13Z,16Z,19Z)-docosa-4,7,10,13,16,19-hexaenoic acid", []string{"dha", "cervonic"}, true, Unbranched},
 }
 
 // NewCatalogue builds the built-in catalogue. It panics only if the built-in
@@ -164,7 +183,7 @@ func NewCatalogue() *Catalogue {
 		c.acids = append(c.acids, a)
 		c.names = append(c.names, a.allNames())
 		c.byID[strings.ToLower(a.ID)] = a
-		k := groupKey{a.Carbons, a.DoubleBondCount, a.HydroxyPosition > 0}
+		k := groupKey{a.Carbons, a.DoubleBondCount, a.HydroxyPosition > 0, a.Branch}
 		c.groups[k] = append(c.groups[k], a)
 		for _, n := range a.allNames() {
 			if other, dup := c.byName[n]; dup && other != a {
@@ -184,6 +203,7 @@ func (d acidDef) build() (*FattyAcid, error) {
 		CommonName:      d.common,
 		SystematicName:  d.systematic,
 		Preferred:       d.preferred,
+		Branch:          d.branch,
 	}
 	switch {
 	case d.bonds == "t":
@@ -206,7 +226,7 @@ func (d acidDef) build() (*FattyAcid, error) {
 	case d.d > 0:
 		return nil, fmt.Errorf("chem: %d:%d has no bonds", d.carbons, d.d)
 	}
-	a.ID = canonicalID(a.Carbons, a.DoubleBondCount, a.Bonds, a.LumpedGeometry, a.HydroxyPosition)
+	a.ID = canonicalID(a.Carbons, a.DoubleBondCount, a.Bonds, a.LumpedGeometry, a.HydroxyPosition, a.Branch)
 	for _, n := range d.names {
 		a.Names = append(a.Names, strings.ToLower(n))
 	}

@@ -206,7 +206,7 @@ func TestAOCSFactorsAreSimpleTAGIodineValues(t *testing.T) {
 	cat := NewCatalogue()
 	for _, f := range aocsCd1c85 {
 		var a *FattyAcid
-		for _, cand := range cat.groups[groupKey{f.carbons, f.d, false}] {
+		for _, cand := range cat.groups[groupKey{f.carbons, f.d, false, Unbranched}] {
 			if cand.Preferred {
 				a = cand
 			}

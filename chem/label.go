@@ -32,7 +32,7 @@ var unidentifiedLabels = map[string]bool{
 var (
 	// shorthandRe splits "C18:1 n-9" style labels into chain, double bonds
 	// and qualifiers. An optional "FA" (LIPID MAPS) or "C" prefix is allowed.
-	shorthandRe = regexp.MustCompile(`^(?:fa\s*)?c?\s*(\d{1,2})\s*:\s*(\d{1,2})(.*)$`)
+	shorthandRe = regexp.MustCompile(`^(?:fa\s*)?(?:(iso|anteiso|ai|i|a)[-\s]?)?c?\s*(\d{1,2})\s*:\s*(\d{1,2})(.*)$`)
 	splitRe     = regexp.MustCompile(`[\s,;/()\[\]]+`)
 	omegaRe     = regexp.MustCompile(`^(?:n|w)-?(\d{1,2})(c|t|cis|trans)?$`)
 	bondPreRe   = regexp.MustCompile(`^(c|t|cis|trans|z|e)-?(\d{1,2})$`)
@@ -71,6 +71,7 @@ type query struct {
 	geometry   Geometry // overall geometry when given without positions
 	hydroxy    bool
 	hydroxyPos int
+	branch     Branch
 	qualified  bool // anything beyond "C:D" was given
 }
 
@@ -112,14 +113,17 @@ func (c *Catalogue) read(label string, suggest bool) (Resolution, error) {
 	if a, ok := c.lookupName(n); ok {
 		return Resolution{Acid: a}, nil
 	}
+	if r, handled, err := c.readExportForm(label, n, suggest); handled {
+		return r, err
+	}
 	m := shorthandRe.FindStringSubmatch(n)
 	if m == nil {
 		return Resolution{}, c.unknown(label, nil, suggest)
 	}
-	q := query{}
-	q.carbons, _ = strconv.Atoi(m[1])
-	q.d, _ = strconv.Atoi(m[2])
-	if err := q.parseQualifiers(m[3]); err != nil {
+	q := query{branch: branchWord(m[1])}
+	q.carbons, _ = strconv.Atoi(m[2])
+	q.d, _ = strconv.Atoi(m[3])
+	if err := q.parseQualifiers(m[4]); err != nil {
 		return Resolution{}, c.unknown(label, &q, suggest)
 	}
 	return c.match(label, q, suggest)
@@ -172,7 +176,26 @@ func (q *query) parseQualifiers(rest string) error {
 	return nil
 }
 
+// branchWord reads an iso/anteiso prefix or token.
+func branchWord(s string) Branch {
+	switch s {
+	case "i", "iso":
+		return Iso
+	case "a", "ai", "anteiso":
+		return Anteiso
+	}
+	return Unbranched
+}
+
 func (q *query) parseToken(tok string) error {
+	switch tok {
+	case "iso", "anteiso", "ai":
+		if q.branch != Unbranched && q.branch != branchWord(tok) {
+			return fmt.Errorf("both iso and anteiso given")
+		}
+		q.branch = branchWord(tok)
+		return nil
+	}
 	switch {
 	case tok == "all-cis" || tok == "all-z" || tok == "cis" || tok == "c" || tok == "z":
 		return q.setGeometry(Cis)
@@ -251,7 +274,7 @@ func readAs(label string, a *FattyAcid, why string) Resolution {
 
 // match picks the catalogue entry a parsed shorthand label names.
 func (c *Catalogue) match(label string, q query, suggest bool) (Resolution, error) {
-	group := c.groups[groupKey{q.carbons, q.d, q.hydroxy}]
+	group := c.groups[groupKey{q.carbons, q.d, q.hydroxy, q.branch}]
 	if len(group) == 0 {
 		return Resolution{}, c.unknown(label, &q, suggest)
 	}
@@ -387,7 +410,7 @@ func (c *Catalogue) suggest(n string, q *query) []string {
 	}
 	if q != nil {
 		for _, hyd := range []bool{q.hydroxy, !q.hydroxy} {
-			for _, a := range c.groups[groupKey{q.carbons, q.d, hyd}] {
+			for _, a := range c.groups[groupKey{q.carbons, q.d, hyd, q.branch}] {
 				add(a.ID)
 			}
 		}

@@ -178,3 +178,67 @@ func TestEveryIDResolvesToItself(t *testing.T) {
 		}
 	}
 }
+
+// TestResolveExportForms covers the lines chromatography software exports
+// besides plain labels: unknown peaks numbered, summed or named by
+// retention time (all unidentified), annotated labels, "FAME" prefixes,
+// co-eluting trans isomers, the acids of fish, dairy and ruminant fats, and
+// summary lines, which are refused with a way forward.
+func TestResolveExportForms(t *testing.T) {
+	cat := NewCatalogue()
+	for _, l := range []string{"unknown peaks", "unk", "Unknown 1", "unknown peak #3", "Sum unknowns", "Others (sum)",
+		"RT 23.45", "rt=23.45 min", "23.4 min", "n.i. 2", "unidentified (total)"} {
+		r, err := cat.Resolve(l)
+		require.NoError(t, err, l)
+		require.True(t, r.Unidentified, l)
+	}
+	cases := []struct {
+		label, want string
+		assumed     bool
+	}{
+		{"C18:1 trans (total)", "18:1 t", false},
+		{"C20:5 n-3 (EPA)", "20:5 c5,c8,c11,c14,c17", false},
+		{"C18:1 cis-9 (oleic)", "18:1 c9", false},
+		{"FAME C18:1n9c", "18:1 c9", false},
+		{"18:1 (petroselinic)", "18:1 c6", false},
+		{"C18:2 c9,t11 (CLA)", "18:2 c9,t11", false},
+		{"16:2 n-4", "16:2 c9,c12", false},
+		{"16:3 n-4", "16:3 c6,c9,c12", false},
+		{"16:4 n-1", "16:4 c6,c9,c12,c15", false},
+		{"21:5 n-3", "21:5 c6,c9,c12,c15,c18", false},
+		{"i15:0", "15:0 iso", false},
+		{"iso-C15:0", "15:0 iso", false},
+		{"a15:0", "15:0 anteiso", false},
+		{"anteiso-17:0", "17:0 anteiso", false},
+		{"17:0 iso", "17:0 iso", false},
+		{"15:0", "15:0", false},
+		{"12:1", "12:1 c9", true},
+		{"CLA", "18:2 c9,t11", true},
+		{"18:1 t6-t8", "18:1 t", true},
+		{"C18:1 trans 6-8", "18:1 t", true},
+		{"18:1 t10", "18:1 t10", false},
+		{"18:1 t7", "18:1 t7", false},
+	}
+	for _, c := range cases {
+		r, err := cat.Resolve(c.label)
+		require.NoError(t, err, c.label)
+		require.Equal(t, c.want, r.Acid.ID, c.label)
+		require.Equal(t, c.assumed, r.Assumption != "", "%s: %q", c.label, r.Assumption)
+	}
+	// Branched and straight chains have the same formula.
+	iso, _ := cat.ByID("15:0 iso")
+	straight, _ := cat.ByID("15:0")
+	require.InDelta(t, straight.MolarMass(), iso.MolarMass(), 1e-12)
+	require.Equal(t, Iso, iso.Branch)
+
+	for _, c := range []struct{ label, says string }{
+		{"total trans", "18:1 t"},
+		{"Total SFA", "computes the saturated"},
+		{"n-3 PUFA", "summary line"},
+		{"18:2 (oleic)", "names two acids"},
+	} {
+		_, err := cat.Resolve(c.label)
+		require.Error(t, err, c.label)
+		require.Contains(t, err.Error(), c.says, c.label)
+	}
+}
