@@ -165,6 +165,9 @@ func TestBadRequests(t *testing.T) {
 		{"no content type", call{body: prof(ok), header: map[string]string{"Content-Type": ""}}, 415, "-"},
 		{"form content type", call{body: prof(ok), header: map[string]string{"Content-Type": "application/x-www-form-urlencoded"}}, 415, "-"},
 		{"merge-patch content type", call{body: prof(ok), header: map[string]string{"Content-Type": "application/merge-patch+json"}}, 415, "-"},
+		{"Latin-1 charset", call{body: prof(ok), header: map[string]string{"Content-Type": "application/json; charset=iso-8859-1"}}, 415, "-"},
+		{"UTF-16 byte-order mark", call{body: "\xff\xfe" + prof(ok)}, 415, "-"},
+		{"invalid UTF-8", call{body: prof(`{"acid":"16:0","percent":50},{"acid":"\xe9","percent":50}`)}, 400, ""},
 		{"gzip content coding", call{body: prof(ok), header: map[string]string{"Content-Encoding": "gzip"}}, 415, "-"},
 		{"wrong method", call{method: http.MethodGet}, 405, "-"},
 		{"wrong method PUT", call{method: http.MethodPut, body: prof(ok)}, 405, "-"},
@@ -267,4 +270,18 @@ func TestPureStandardSlightlyOver100(t *testing.T) {
 		body: `{"profile":{"acids":[{"acid":"18:1 c9","percent":100.2}]}}`})
 	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
 	require.Contains(t, rec.Body.String(), `"profile_normalised"`)
+}
+
+// Exports from spreadsheets and LIMS often start with a UTF-8 byte-order
+// mark, and some clients name the charset: both are UTF-8 and accepted.
+func TestUTF8BodiesAccepted(t *testing.T) {
+	app := newApp(t)
+	for name, c := range map[string]call{
+		"byte-order mark": {body: "\xef\xbb\xbf" + soyLike},
+		"charset utf-8":   {body: soyLike, header: map[string]string{"Content-Type": "application/json; charset=UTF-8"}},
+	} {
+		c.method, c.path = http.MethodPost, "/v1/properties"
+		rec := do(t, app, c)
+		require.Equal(t, http.StatusOK, rec.Code, "%s: %s", name, rec.Body.String())
+	}
 }

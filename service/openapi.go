@@ -9,6 +9,7 @@ import (
 	"mime"
 	"net/http"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/getkin/kin-openapi/openapi3"
 	"github.com/getkin/kin-openapi/routers"
@@ -88,6 +89,9 @@ func readBodies(doc *openapi3.T) echo.MiddlewareFunc {
 			if err != nil {
 				return err
 			}
+			if body, err = checkEncoding(body); err != nil {
+				return err
+			}
 			if len(bytes.TrimSpace(body)) == 0 {
 				return api.NewError(api.KindMalformed, "the request body is empty", api.FieldError{Pointer: "", Reason: "a JSON object is required"})
 			}
@@ -144,20 +148,58 @@ func readBody(req *http.Request) ([]byte, error) {
 	return body, nil
 }
 
-// checkMediaType accepts application/json (any charset parameter) with no
-// content coding; anything else is 415 (RFC 9110 §15.5.16, RFC 7694).
+// checkMediaType accepts application/json, in UTF-8 (no charset, or
+// charset utf-8), with no content coding; anything else is 415 (RFC 9110
+// §15.5.16, RFC 7694). JSON exchanged between systems is UTF-8 (RFC 8259
+// §8.1), so another charset is refused rather than guessed at.
 func checkMediaType(req *http.Request) error {
 	ct := req.Header.Get(echo.HeaderContentType)
-	mt, _, err := mime.ParseMediaType(ct)
+	mt, params, err := mime.ParseMediaType(ct)
 	if ct == "" || err != nil || mt != "application/json" {
 		return api.NewError(api.KindUnsupportedMedia,
 			fmt.Sprintf("the request body must be application/json, not %q", ct))
+	}
+	if cs, ok := params["charset"]; ok && !strings.EqualFold(cs, "utf-8") && !strings.EqualFold(cs, "utf8") {
+		return api.NewError(api.KindUnsupportedMedia,
+			fmt.Sprintf("the request body must be UTF-8 JSON, not charset %q; convert the export to UTF-8 and send it without a charset or with charset=utf-8", cs))
 	}
 	if enc := req.Header.Get("Content-Encoding"); enc != "" && !strings.EqualFold(enc, "identity") {
 		return api.NewError(api.KindUnsupportedMedia,
 			fmt.Sprintf("the request body must not be encoded (Content-Encoding %q)", enc))
 	}
 	return nil
+}
+
+// Byte-order marks: UTF-8's is dropped (spreadsheet and LIMS exports
+// often start with one; RFC 8259 §8.1 lets a parser ignore it); UTF-16's
+// means the body is not UTF-8 at all.
+var (
+	bomUTF8    = []byte{0xEF, 0xBB, 0xBF}
+	bomUTF16BE = []byte{0xFE, 0xFF}
+	bomUTF16LE = []byte{0xFF, 0xFE}
+)
+
+// checkEncoding drops a UTF-8 byte-order mark and refuses a body that is
+// not UTF-8, saying where.
+func checkEncoding(body []byte) ([]byte, error) {
+	if bytes.HasPrefix(body, bomUTF16BE) || bytes.HasPrefix(body, bomUTF16LE) {
+		return nil, api.NewError(api.KindUnsupportedMedia,
+			"the request body is UTF-16 (it starts with a UTF-16 byte-order mark); send it as UTF-8")
+	}
+	body = bytes.TrimPrefix(body, bomUTF8)
+	if !utf8.Valid(body) {
+		at := 0
+		for at < len(body) {
+			r, n := utf8.DecodeRune(body[at:])
+			if r == utf8.RuneError && n <= 1 {
+				break
+			}
+			at += n
+		}
+		return nil, api.NewError(api.KindMalformed, "the request body is not valid UTF-8",
+			api.FieldError{Pointer: "", Reason: fmt.Sprintf("invalid UTF-8 at byte %d; is the export in another encoding (for example Latin-1)? send it as UTF-8", at)})
+	}
+	return body, nil
 }
 
 // contractError turns the violations of the contract into one malformed-
