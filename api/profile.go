@@ -7,9 +7,10 @@ import (
 // ProfileBody is the profile shape every endpoint accepts, as the field
 // "profile".
 type ProfileBody struct {
-	Basis               string      `json:"basis,omitempty"`
-	SumTolerancePercent *float64    `json:"sum_tolerance_percent,omitempty"`
-	Acids               []EntryBody `json:"acids"`
+	Basis                  string      `json:"basis,omitempty"`
+	SumTolerancePercent    *float64    `json:"sum_tolerance_percent,omitempty"`
+	MaxUnidentifiedPercent *float64    `json:"max_unidentified_percent,omitempty"`
+	Acids                  []EntryBody `json:"acids"`
 }
 
 // EntryBody is one line of a profile.
@@ -31,7 +32,7 @@ func (b *ProfileBody) input() *chem.ProfileInput {
 	if b == nil {
 		return nil
 	}
-	in := &chem.ProfileInput{Basis: b.Basis, SumTolerancePercent: b.SumTolerancePercent, Acids: make([]chem.Entry, len(b.Acids))}
+	in := &chem.ProfileInput{Basis: b.Basis, SumTolerancePercent: b.SumTolerancePercent, MaxUnidentifiedPercent: b.MaxUnidentifiedPercent, Acids: make([]chem.Entry, len(b.Acids))}
 	for i, e := range b.Acids {
 		in.Acids[i] = chem.Entry(e)
 	}

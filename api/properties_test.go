@@ -3,6 +3,7 @@ package api_test
 import (
 	"fmt"
 	"net/http"
+	"net/http/httptest"
 	"strings"
 	"testing"
 
@@ -160,6 +161,9 @@ func TestBadRequests(t *testing.T) {
 		{"unknown label", call{body: prof(`{"acid":"16:0","percent":50},{"acid":"oleik","percent":50}`)}, 422, "/profile/acids/1/acid"},
 		{"ambiguous label", call{body: prof(`{"acid":"16:0","percent":50},{"acid":"20:3","percent":50}`)}, 422, "/profile/acids/1/acid"},
 		{"only unidentified", call{body: prof(`{"acid":"others","percent":100}`)}, 422, "/profile/acids"},
+		{"99.9 % unidentified", call{body: prof(`{"acid":"16:0","percent":0.1},{"acid":"unknown peaks","percent":99.9}`)}, 422, "/profile/acids"},
+		{"unidentified above the limit", call{body: prof(`{"acid":"16:0","percent":89},{"acid":"unk","percent":11}`)}, 422, "/profile/acids"},
+		{"unidentified limit out of range", call{body: `{"profile":{"max_unidentified_percent":101,"acids":[` + ok + `]}}`}, 400, "/profile/max_unidentified_percent"},
 		{"body over the limit", call{body: huge}, 413, "-"},
 		{"text/plain", call{body: prof(ok), header: map[string]string{"Content-Type": "text/plain"}}, 415, "-"},
 		{"no content type", call{body: prof(ok), header: map[string]string{"Content-Type": ""}}, 415, "-"},
@@ -284,4 +288,32 @@ func TestUTF8BodiesAccepted(t *testing.T) {
 		rec := do(t, app, c)
 		require.Equal(t, http.StatusOK, rec.Code, "%s: %s", name, rec.Body.String())
 	}
+}
+
+// Between 2 % and the limit the unidentified share is answered with a
+// warning; the limit is the client's to raise.
+func TestUnidentifiedShare(t *testing.T) {
+	app := newApp(t)
+	body := func(extra string, unk float64) string {
+		return fmt.Sprintf(`{"profile":{%s"acids":[{"acid":"16:0","percent":%g},{"acid":"18:1 c9","percent":50},{"acid":"Sum unknowns","percent":%g}]}}`,
+			extra, 50-unk, unk)
+	}
+	codes := func(rec *httptest.ResponseRecorder) []string {
+		var out []string
+		for _, w := range decode[api.PropertiesResponse](t, rec).Warnings {
+			out = append(out, w.Code)
+		}
+		return out
+	}
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: body("", 1)})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.NotContains(t, codes(rec), "unidentified_share_high")
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: body("", 5)})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.Contains(t, codes(rec), "unidentified_share_high")
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: body("", 15)})
+	require.Equal(t, http.StatusUnprocessableEntity, rec.Code, rec.Body.String())
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: body(`"max_unidentified_percent":20,`, 15)})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	require.Contains(t, codes(rec), "unidentified_share_high")
 }

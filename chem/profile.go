@@ -62,6 +62,10 @@ type ProfileInput struct {
 	// SumTolerancePercent is how far, in percentage points, the sum may
 	// stray from 100 and still be scaled; nil means DefaultSumTolerance.
 	SumTolerancePercent *float64
+	// MaxUnidentifiedPercent is the largest unidentified share (percent of
+	// the whole profile) that is accepted; nil means
+	// DefaultMaxUnidentifiedPercent.
+	MaxUnidentifiedPercent *float64
 	// Acids are the profile's lines.
 	Acids []Entry
 }
@@ -97,8 +101,43 @@ func (c *Catalogue) ReadProfile(in *ProfileInput) (*Profile, error) {
 	if in.SumTolerancePercent != nil {
 		tol = *in.SumTolerancePercent
 	}
-	return NewProfile(c, basis, in.Acids, tol)
+	limit := DefaultMaxUnidentifiedPercent
+	if in.MaxUnidentifiedPercent != nil {
+		limit = *in.MaxUnidentifiedPercent
+		if math.IsNaN(limit) || limit < 0 || limit > 100 {
+			return nil, Errorf(KindInvalid, "the unidentified limit must be from 0 to 100 %%").
+				WithField("must be from 0 to 100", "max_unidentified_percent")
+		}
+	}
+	p, err := NewProfile(c, basis, in.Acids, tol)
+	if err != nil {
+		return nil, err
+	}
+	switch u := p.UnidentifiedPercent; {
+	case u > limit+SumNoise:
+		// The chemistry of the identified rest would be answered as if it
+		// were the fat: refuse.
+		return nil, Errorf(KindInvalid, "%.3g %% of the profile is unidentified, above the limit of %.3g %%; the "+
+			"identified acids cannot stand for the fat", u, limit).
+			WithField(fmt.Sprintf("unidentified share %.3g %% exceeds max_unidentified_percent %.3g", u, limit), "acids")
+	case u > UnidentifiedWarnPercent:
+		p.Warnings = append(p.Warnings, Warning{WarnUnidentifiedHigh, fmt.Sprintf(
+			"%.3g %% of the profile is unidentified, more than the %.3g %% a complete FAME analysis usually leaves; "+
+				"the results describe the identified acids only — check the peak identification", u, UnidentifiedWarnPercent),
+			[]any{"acids"}})
+	}
+	return p, nil
 }
+
+// Limits of the unidentified share of a profile, percent of the whole
+// profile: above DefaultMaxUnidentifiedPercent (or the request's limit) a
+// profile is refused; above UnidentifiedWarnPercent it is answered with
+// WarnUnidentifiedHigh. Our choices, common practice, no source: a
+// complete GC analysis of an edible oil identifies all but a few percent.
+const (
+	DefaultMaxUnidentifiedPercent = 10.0
+	UnidentifiedWarnPercent       = 2.0
+)
 
 // ReadProfileAt is ReadProfile for a profile that sits at path in the
 // caller's input: errors and warnings point there.
@@ -129,6 +168,9 @@ const (
 	WarnBasisConversion = "basis_converted"
 	WarnUndefinedIndex  = "index_undefined"
 	WarnMethodScope     = "method_scope"
+	// WarnUnidentifiedHigh: more of the profile is unidentified than a
+	// complete analysis leaves (UnidentifiedWarnPercent).
+	WarnUnidentifiedHigh = "unidentified_share_high"
 )
 
 // Component is one identified acid of a profile.
