@@ -39,6 +39,15 @@ type aocsAcid struct {
 	tag, freeAcid float64
 }
 
+// AOCSScopeIodineValue is how much of the exact iodine value (g I2/100 g)
+// the acids AOCS Cd 1c-85 does not count may carry before its value is no
+// longer reported as applicable. The method is written for the common
+// vegetable oils, whose other unsaturated acids (20:2, 24:1, …) carry a few
+// tenths of a unit; a fish oil's C20 and C22 polyenes carry a hundred and
+// more. One unit, the resolution certificates print the value to, is our
+// limit (common practice, no source).
+const AOCSScopeIodineValue = 1.0
+
 var aocsCd1c85 = []aocsAcid{
 	{16, 1, 0.950, 0.9976},
 	{18, 1, 0.860, 0.8986},
@@ -232,6 +241,7 @@ func PropertiesOf(p *Profile, m Material) Properties {
 	perChain := materialMassPerChain(p, m)
 	fame := p.InBasis(BasisFAMEWeight)
 	var ignored []string
+	var ignoredIV float64 // exact iodine value of the acids the method does not count
 	for i, c := range p.Components {
 		r := AcidResult{
 			Acid:              c.Acid,
@@ -246,8 +256,13 @@ func PropertiesOf(p *Profile, m Material) Properties {
 			out.IodineValueAOCS += r.IodineValueAOCS
 		} else if c.Acid.DoubleBondCount > 0 && c.Percent > 0 && out.AOCSApplies {
 			ignored = append(ignored, fmt.Sprintf("%s (%.3g %% as FAME weight)", c.Acid.ID, fame[i]))
+			ignoredIV += r.IodineValue
 		}
 		out.Acids[i] = r
+	}
+	outOfScope := out.AOCSApplies && ignoredIV > AOCSScopeIodineValue
+	if outOfScope {
+		out.AOCSApplies = false
 	}
 	if out.AOCSApplies {
 		out.AOCSFactorSet = "triacylglycerol"
@@ -256,10 +271,18 @@ func PropertiesOf(p *Profile, m Material) Properties {
 		}
 		out.AOCSNote = "AOCS Cd 1c-85 with its " + out.AOCSFactorSet +
 			" factors over 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1 (FAME weight %)"
+	} else if outOfScope {
+		out.AOCSNote = fmt.Sprintf("outside the scope of AOCS Cd 1c-85: acids it does not count carry %.1f of the exact "+
+			"iodine value %.1f (more than %g); use iodine_value", ignoredIV, out.IodineValue, AOCSScopeIodineValue)
 	} else {
 		out.AOCSNote = "AOCS Cd 1c-85 defines no factors for methyl esters; use iodine_value"
 	}
 	switch {
+	case outOfScope:
+		out.Warnings = append(out.Warnings, Warning{WarnMethodScope,
+			fmt.Sprintf("AOCS Cd 1c-85 counts only 16:1, 18:1, 18:2, 18:3, 20:1 and 22:1; here %s, which it ignores, carry "+
+				"%.1f g I2/100 g of the exact iodine value %.1f, so no calculated value is given (applies false): use iodine_value",
+				strings.Join(ignored, ", "), ignoredIV, out.IodineValue), nil})
 	case !out.AOCSApplies:
 		out.Warnings = append(out.Warnings, Warning{WarnMethodScope,
 			"AOCS Cd 1c-85 defines factors for triacylglycerols and free fatty acids only; no calculated value is given for methyl esters", nil})

@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/require"
@@ -343,4 +344,41 @@ func BenchmarkProperties(b *testing.B) {
 		}
 		_ = PropertiesOf(p, MaterialTAG)
 	}
+}
+
+// TestAOCSOutsideItsScope: in a fish oil the C20 and C22 polyenes, which
+// AOCS Cd 1c-85 does not count, carry most of the unsaturation; the method's
+// figure would be a wrong number ready for a certificate, so it is not given.
+// Composition: a typical anchovy-type oil [memory], used only for its
+// structure; the check values are [calc] from the formula.
+func TestAOCSOutsideItsScope(t *testing.T) {
+	cat := NewCatalogue()
+	fish := map[string]float64{
+		"14:0": 8, "15:0": 0.5, "15:0 iso": 0.3, "16:0": 19, "16:1 c9": 10, "16:2 c9,c12": 1.2, "16:3 c6,c9,c12": 1.2,
+		"16:4 c6,c9,c12,c15": 1.5, "17:0": 0.5, "18:0": 3.5, "18:1 c9": 11, "18:1 c11": 3, "18:2 c9,c12": 1.3,
+		"18:3 c9,c12,c15": 0.9, "18:4 c6,c9,c12,c15": 2.8, "20:1 c11": 1.5, "20:4 c5,c8,c11,c14": 1.0,
+		"20:5 c5,c8,c11,c14,c17": 18, "21:5 c6,c9,c12,c15,c18": 0.8, "22:1 c11": 1.2, "22:5 c7,c10,c13,c16,c19": 2.0,
+		"22:6 c4,c7,c10,c13,c16,c19": 10.8,
+	}
+	got := PropertiesOf(vectorProfile(t, cat, fish), MaterialTAG)
+	require.False(t, got.AOCSApplies)
+	require.Contains(t, got.AOCSNote, "outside the scope")
+	var counted, ignored float64
+	for _, a := range got.Acids {
+		if a.CountedByAOCS {
+			counted += a.IodineValue
+		} else {
+			ignored += a.IodineValue
+		}
+	}
+	require.InDelta(t, got.IodineValue, counted+ignored, 1e-9)
+	require.Greater(t, ignored, AOCSScopeIodineValue)
+	require.Greater(t, got.IodineValue, 150.0, "a fish oil of this kind has an iodine value well above 150")
+	var scope bool
+	for _, w := range got.Warnings {
+		if w.Code == WarnMethodScope && strings.Contains(w.Message, "20:5") && strings.Contains(w.Message, "applies false") {
+			scope = true
+		}
+	}
+	require.True(t, scope, "%v", got.Warnings)
 }
