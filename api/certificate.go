@@ -63,6 +63,7 @@ type CompositionSums struct {
 // IndicesBody holds the stability and nutritional indices.
 type IndicesBody struct {
 	CalculatedOxidizability float64  `json:"calculated_oxidizability"`
+	CoxOutsidePercent       float64  `json:"calculated_oxidizability_outside_percent"`
 	AtherogenicIndex        *float64 `json:"atherogenic_index"`
 	ThrombogenicIndex       *float64 `json:"thrombogenic_index"`
 }
@@ -136,6 +137,7 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		},
 		Indices: IndicesBody{
 			CalculatedOxidizability: round(p.Indices.Cox, sum),
+			CoxOutsidePercent:       round(p.Indices.CoxOutsidePercent, sum),
 			AtherogenicIndex:        roundPtr(p.Indices.Atherogenic, decimalsIndex),
 			ThrombogenicIndex:       roundPtr(p.Indices.Thrombogenic, decimalsIndex),
 		},

@@ -58,6 +58,7 @@ func (r *PropertiesResponse) AppendJSON(b []byte) ([]byte, error) {
 	w.key("indices")
 	w.open('{')
 	w.num("calculated_oxidizability", r.Indices.CalculatedOxidizability)
+	w.num("calculated_oxidizability_outside_percent", r.Indices.CoxOutsidePercent)
 	w.numPtr("atherogenic_index", r.Indices.AtherogenicIndex)
 	w.numPtr("thrombogenic_index", r.Indices.ThrombogenicIndex)
 	w.close('}')

@@ -115,6 +115,12 @@ type Indices struct {
 	// Cox is the calculated oxidizability [Fatemi & Hammond, Lipids 15:379
 	// (1980)]: (18:1 + 10.3 × 18:2 + 21.6 × 18:3)/100 over cis C18 acids.
 	Cox float64
+	// CoxOutsidePercent is the share of the identified acids (profile
+	// basis) that are polyunsaturated but outside Cox's definition: C20
+	// and C22 polyenes, C16 polyenes, trans and conjugated dienes. Cox
+	// leaves them out, so it understates the oxidizability of a fat that
+	// has them; above CoxScopePercent a warning says so.
+	CoxOutsidePercent float64
 	// Atherogenic is Ulbricht & Southgate's index, Lancet 338:985 (1991):
 	// (12:0 + 4×14:0 + 16:0)/(MUFA + n-6 + n-3).
 	Atherogenic *float64
@@ -150,6 +156,12 @@ type Properties struct {
 	Acids                                                         []AcidResult
 	Warnings                                                      []Warning
 }
+
+// CoxScopePercent is the share of polyunsaturated acids outside Cox's
+// definition above which the index earns a scope warning (our choice,
+// common practice, no source: a seed oil carries a few tenths of a percent
+// of them).
+const CoxScopePercent = 1.0
 
 // materialMolarMass is the mean molar mass of what one mole of chains is
 // carried in, per chain: a third of the mean TAG, the acid, or the ester.
@@ -359,9 +371,16 @@ func ratio(num, den float64) *float64 {
 }
 
 func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
-	var c18m, c18d, c18t, c12, c14, c16, c18 float64
+	var c18m, c18d, c18t, c12, c14, c16, c18, outside float64
+	var outsideIDs []string
 	for _, c := range p.Components {
 		a := c.Acid
+		if a.DoubleBondCount >= 2 && !(a.Carbons == 18 && a.AllCis() && !a.Conjugated() && a.HydroxyPosition == 0 && a.DoubleBondCount <= 3) {
+			outside += c.Percent
+			if c.Percent > 0 {
+				outsideIDs = append(outsideIDs, a.ID)
+			}
+		}
 		switch {
 		case a.DoubleBondCount == 0:
 			switch a.Carbons {
@@ -387,6 +406,15 @@ func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
 	}
 	var ix Indices
 	ix.Cox = (c18m + 10.3*c18d + 21.6*c18t) / 100
+	ix.CoxOutsidePercent = outside
+	if outside > CoxScopePercent {
+		if len(outsideIDs) > 6 {
+			outsideIDs = append(outsideIDs[:6], "…")
+		}
+		warn = append(warn, Warning{WarnMethodScope, fmt.Sprintf(
+			"the calculated oxidizability (Cox) counts cis 18:1, 18:2 and 18:3 only; %.3g %% of the acids are polyunsaturated "+
+				"outside that definition (%s), so it understates how readily this fat oxidises", outside, strings.Join(outsideIDs, ", ")), nil})
+	}
 	ix.Atherogenic = ratio(c12+4*c14+c16, s.Monounsaturated+s.N6+s.N3)
 	den := 0.5*s.Monounsaturated + 0.5*s.N6 + 3*s.N3
 	switch {

@@ -381,4 +381,15 @@ func TestAOCSOutsideItsScope(t *testing.T) {
 		}
 	}
 	require.True(t, scope, "%v", got.Warnings)
+
+	// Cox counts the C18 acids only: the fish oil's other polyenes, summed
+	// by hand from the composition above (which sums to 100) [calc], are
+	// reported and warned about.
+	other := 1.2 + 1.2 + 1.5 + 2.8 + 1.0 + 18 + 0.8 + 2.0 + 10.8 // 16:2–16:4, 18:4, 20:4, 20:5, 21:5, 22:5, 22:6
+	require.InDelta(t, other, got.Indices.CoxOutsidePercent, 1e-9)
+	var cox bool
+	for _, w := range got.Warnings {
+		cox = cox || (w.Code == WarnMethodScope && strings.Contains(w.Message, "Cox"))
+	}
+	require.True(t, cox, "%v", got.Warnings)
 }
