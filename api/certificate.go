@@ -10,25 +10,51 @@ import (
 
 // PropertiesRequest is the body of POST /v1/properties.
 type PropertiesRequest struct {
-	Profile  *ProfileBody `json:"profile"`
-	Material string       `json:"material,omitempty"`
+	Profile  *ProfileBody  `json:"profile"`
+	Material string        `json:"material,omitempty"`
+	Measured *MeasuredBody `json:"measured,omitempty"`
+}
+
+// MeasuredBody is the laboratory's measured iodine and saponification
+// values, to check the composition against.
+type MeasuredBody struct {
+	IodineValue                  *float64 `json:"iodine_value,omitempty"`
+	SaponificationValue          *float64 `json:"saponification_value,omitempty"`
+	IodineValueTolerance         *float64 `json:"iodine_value_tolerance,omitempty"`
+	SaponificationValueTolerance *float64 `json:"saponification_value_tolerance,omitempty"`
+}
+
+// CheckBody is a measured value against the calculated one.
+type CheckBody struct {
+	Measured   float64 `json:"measured"`
+	Calculated float64 `json:"calculated"`
+	Difference float64 `json:"difference"`
+	Tolerance  float64 `json:"tolerance"`
+	Agrees     bool    `json:"agrees"`
+}
+
+// MeasuredComparison holds the checks of the measured values sent.
+type MeasuredComparison struct {
+	IodineValue         *CheckBody `json:"iodine_value,omitempty"`
+	SaponificationValue *CheckBody `json:"saponification_value,omitempty"`
 }
 
 // PropertiesResponse is the answer of POST /v1/properties. Its figures are
 // rounded to their reporting precision (figures.go).
 type PropertiesResponse struct {
-	Material                string           `json:"material"`
-	Basis                   string           `json:"basis"`
-	IodineValue             float64          `json:"iodine_value"`
-	AOCS                    AOCSIodineValue  `json:"aocs_cd_1c_85"`
-	SaponificationValue     float64          `json:"saponification_value"`
-	MeanMolarMass           MeanMolarMass    `json:"mean_molar_mass"`
-	MeanDoubleBondsPerChain float64          `json:"mean_double_bonds_per_chain"`
-	UnidentifiedPercent     float64          `json:"unidentified_percent"`
-	Sums                    CompositionSums  `json:"sums"`
-	Indices                 IndicesBody      `json:"indices"`
-	Acids                   []AcidResultBody `json:"acids"`
-	Warnings                []WarningBody    `json:"warnings"`
+	Material                string              `json:"material"`
+	Basis                   string              `json:"basis"`
+	IodineValue             float64             `json:"iodine_value"`
+	AOCS                    AOCSIodineValue     `json:"aocs_cd_1c_85"`
+	SaponificationValue     float64             `json:"saponification_value"`
+	MeanMolarMass           MeanMolarMass       `json:"mean_molar_mass"`
+	MeanDoubleBondsPerChain float64             `json:"mean_double_bonds_per_chain"`
+	UnidentifiedPercent     float64             `json:"unidentified_percent"`
+	Sums                    CompositionSums     `json:"sums"`
+	Indices                 IndicesBody         `json:"indices"`
+	Acids                   []AcidResultBody    `json:"acids"`
+	MeasuredComparison      *MeasuredComparison `json:"measured_comparison,omitempty"`
+	Warnings                []WarningBody       `json:"warnings"`
 }
 
 // AOCSIodineValue is the AOCS Cd 1c-85 calculated iodine value.
@@ -81,7 +107,12 @@ type AcidResultBody struct {
 
 // input copies the request into the science's shape.
 func (r *PropertiesRequest) input() chem.PropertiesInput {
-	return chem.PropertiesInput{Profile: r.Profile.input(), Material: r.Material}
+	in := chem.PropertiesInput{Profile: r.Profile.input(), Material: r.Material}
+	if m := r.Measured; m != nil {
+		in.Measured = &chem.MeasuredInput{IodineValue: m.IodineValue, SaponificationValue: m.SaponificationValue,
+			IodineValueTolerance: m.IodineValueTolerance, SaponificationValueTolerance: m.SaponificationValueTolerance}
+	}
+	return in
 }
 
 func handleProperties(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
@@ -150,6 +181,12 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		out.AOCS.FactorSet = &set
 		out.AOCS.IodineValue = optional(round(p.IodineValueAOCS, v))
 	}
+	if p.IodineValueCheck != nil || p.SaponificationValueCheck != nil {
+		out.MeasuredComparison = &MeasuredComparison{
+			IodineValue:         fromCheck(p.IodineValueCheck),
+			SaponificationValue: fromCheck(p.SaponificationValueCheck),
+		}
+	}
 	for i, a := range p.Acids {
 		r := AcidResultBody{
 			Acid:                    a.Acid.ID,
@@ -165,4 +202,13 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		out.Acids[i] = r
 	}
 	return out
+}
+
+// fromCheck converts one check, nil for none.
+func fromCheck(c *chem.Check) *CheckBody {
+	if c == nil {
+		return nil
+	}
+	return &CheckBody{Measured: c.Measured, Calculated: round(c.Calculated, decimalsValue),
+		Difference: round(c.Difference, decimalsValue), Tolerance: c.Tolerance, Agrees: c.Agrees}
 }

@@ -82,6 +82,13 @@ func (r *PropertiesResponse) AppendJSON(b []byte) ([]byte, error) {
 		}
 		w.close(']')
 	}
+	if mc := r.MeasuredComparison; mc != nil {
+		w.key("measured_comparison")
+		w.open('{')
+		w.check("iodine_value", mc.IodineValue)
+		w.check("saponification_value", mc.SaponificationValue)
+		w.close('}')
+	}
 	w.key("warnings")
 	w.warnings(r.Warnings)
 	w.close('}')
@@ -164,6 +171,21 @@ func (w *jsonWriter) numPtr(k string, v *float64) {
 
 // float writes v as encoding/json does: 'f' notation, or 'e' below 1e-6
 // and from 1e21 on, with a one-digit exponent unpadded.
+// check writes one measured-value check; nothing for nil (omitempty).
+func (w *jsonWriter) check(k string, c *CheckBody) {
+	if c == nil {
+		return
+	}
+	w.key(k)
+	w.open('{')
+	w.num("measured", c.Measured)
+	w.num("calculated", c.Calculated)
+	w.num("difference", c.Difference)
+	w.num("tolerance", c.Tolerance)
+	w.boolean("agrees", c.Agrees)
+	w.close('}')
+}
+
 func (w *jsonWriter) float(v float64) {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		w.err = errNonFinite

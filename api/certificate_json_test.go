@@ -31,6 +31,10 @@ func TestPropertiesJSONMatchesEncoder(t *testing.T) {
 		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "EPA", Percent: 50}, {Acid: "DHA", Percent: 50}}}, Material: "methyl_esters"},
 		{Profile: &chem.ProfileInput{Basis: "mole_percent", Acids: []chem.Entry{{Acid: "stearic", Percent: 100}}}, Material: "free_fatty_acids"},
 		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "18:1 t9", Percent: 60}, {Acid: "18:2 c9,t11", Percent: 40.3}}}},
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 40}, {Acid: "18:1", Percent: 60}}},
+			Measured: &chem.MeasuredInput{IodineValue: ptr(49.0), SaponificationValue: ptr(200.0)}},
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 40}, {Acid: "18:1", Percent: 60}}},
+			Measured: &chem.MeasuredInput{SaponificationValue: ptr(190.5)}},
 	} {
 		p, err := chem.ComputeProperties(cat, in)
 		require.NoError(t, err)
@@ -74,3 +78,5 @@ func FuzzJSONString(f *testing.F) {
 		}
 	})
 }
+
+func ptr(v float64) *float64 { return &v }

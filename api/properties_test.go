@@ -317,3 +317,44 @@ func TestUnidentifiedShare(t *testing.T) {
 	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
 	require.Contains(t, codes(rec), "unidentified_share_high")
 }
+
+// A measured iodine value is checked against the calculated one. The
+// refined palm oil sample of a published table (composition and Wijs
+// IV 53.3 from the same table; see testdata/melting/validation_cases.json)
+// agrees within the default tolerance; a value typed for another oil does
+// not, and the warning points at it.
+func TestMeasuredValuesChecked(t *testing.T) {
+	app := newApp(t)
+	palm := `{"acids":[{"acid":"12:0","percent":0.2},{"acid":"14:0","percent":1.1},{"acid":"16:0","percent":44},
+		{"acid":"16:1 c9","percent":0.1},{"acid":"18:0","percent":4.5},{"acid":"18:1 c9","percent":39.2},
+		{"acid":"18:2 c9,c12","percent":10.1},{"acid":"18:3 c9,c12,c15","percent":0.4},{"acid":"20:0","percent":0.4}]}`
+	post := func(measured string) api.PropertiesResponse {
+		rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":` + palm + `,"measured":` + measured + `}`})
+		require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+		return decode[api.PropertiesResponse](t, rec)
+	}
+	got := post(`{"iodine_value":53.3}`)
+	require.NotNil(t, got.MeasuredComparison)
+	iv := got.MeasuredComparison.IodineValue
+	require.NotNil(t, iv)
+	require.True(t, iv.Agrees)
+	require.InDelta(t, 53.3-got.IodineValue, iv.Difference, 0.011)
+	require.Nil(t, got.MeasuredComparison.SaponificationValue)
+	for _, w := range got.Warnings {
+		require.NotEqual(t, "measured_disagrees", w.Code)
+	}
+
+	got = post(`{"iodine_value":130,"saponification_value":192,"saponification_value_tolerance":10}`)
+	require.False(t, got.MeasuredComparison.IodineValue.Agrees)
+	require.True(t, got.MeasuredComparison.SaponificationValue.Agrees)
+	var ptrs []string
+	for _, w := range got.Warnings {
+		if w.Code == "measured_disagrees" {
+			ptrs = append(ptrs, w.Pointer)
+		}
+	}
+	require.Equal(t, []string{"/measured/iodine_value"}, ptrs)
+
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":` + palm + `,"measured":{}}`})
+	require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
+}

@@ -2,6 +2,7 @@ package chem
 
 import (
 	"fmt"
+	"math"
 	"strings"
 )
 
@@ -154,7 +155,11 @@ type Properties struct {
 	Sums                                                          Sums
 	Indices                                                       Indices
 	Acids                                                         []AcidResult
-	Warnings                                                      []Warning
+	// IodineValueCheck and SaponificationValueCheck compare the request's
+	// measured values with the exact calculated ones; nil when none was
+	// sent.
+	IodineValueCheck, SaponificationValueCheck *Check
+	Warnings                                   []Warning
 }
 
 // CoxScopePercent is the share of polyunsaturated acids outside Cox's
@@ -213,6 +218,42 @@ type PropertiesInput struct {
 	// Material names the chemical form of the sample: "triacylglycerols"
 	// (also ""), "free_fatty_acids" or "methyl_esters". See [Material].
 	Material string
+	// Measured holds laboratory values to check the calculation against;
+	// optional. Paths: "measured", "iodine_value", ….
+	Measured *MeasuredInput
+}
+
+// MeasuredInput is a sample's measured iodine and saponification values
+// (Wijs, AOCS Cd 1d-92 / ISO 3961; AOCS Cd 3-25 / ISO 3657), each optional,
+// with the difference from the calculated value the laboratory accepts
+// (nil for the defaults).
+type MeasuredInput struct {
+	IodineValue                  *float64
+	SaponificationValue          *float64
+	IodineValueTolerance         *float64
+	SaponificationValueTolerance *float64
+}
+
+// Default agreement between a measured value and the one calculated from
+// the composition: our choice, common practice, no source: a few units of
+// iodine value and of saponification value cover the methods'
+// reproducibility and the GC's response factors for a sound sample; a
+// larger difference points at a misidentified peak, an unusual sample, or a
+// mix-up of samples.
+const (
+	DefaultIodineValueTolerance         = 3.0
+	DefaultSaponificationValueTolerance = 4.0
+)
+
+// WarnMeasuredDisagrees: a measured value differs from the calculated one
+// by more than its tolerance.
+const WarnMeasuredDisagrees = "measured_disagrees"
+
+// Check is a measured value against the calculated one.
+type Check struct {
+	Measured, Calculated, Difference, Tolerance float64
+	// Agrees reports |Difference| <= Tolerance.
+	Agrees bool
 }
 
 // ComputeProperties reads the profile of in and calculates its certificate
@@ -229,7 +270,48 @@ func ComputeProperties(cat *Catalogue, in PropertiesInput) (Properties, error) {
 	if err != nil {
 		return Properties{}, err
 	}
-	return PropertiesOf(p, m), nil
+	out := PropertiesOf(p, m)
+	if mi := in.Measured; mi != nil {
+		var bad FieldErrors
+		tolerance := func(v *float64, def float64, field string) float64 {
+			if v == nil {
+				return def
+			}
+			if math.IsNaN(*v) || *v < 0 {
+				bad.Invalid("must be a number >= 0", "measured", field)
+			}
+			return *v
+		}
+		ivTol := tolerance(mi.IodineValueTolerance, DefaultIodineValueTolerance, "iodine_value_tolerance")
+		svTol := tolerance(mi.SaponificationValueTolerance, DefaultSaponificationValueTolerance, "saponification_value_tolerance")
+		if err := bad.Err(""); err != nil {
+			return Properties{}, err
+		}
+		if mi.IodineValue != nil {
+			out.IodineValueCheck = check(*mi.IodineValue, out.IodineValue, ivTol)
+			out.Warnings = disagreement(out.Warnings, out.IodineValueCheck, "iodine value", "g I2/100 g", "iodine_value")
+		}
+		if mi.SaponificationValue != nil {
+			out.SaponificationValueCheck = check(*mi.SaponificationValue, out.SaponificationValue, svTol)
+			out.Warnings = disagreement(out.Warnings, out.SaponificationValueCheck, "saponification value", "mg KOH/g", "saponification_value")
+		}
+	}
+	return out, nil
+}
+
+func check(measured, calculated, tol float64) *Check {
+	d := measured - calculated
+	return &Check{Measured: measured, Calculated: calculated, Difference: d, Tolerance: tol, Agrees: math.Abs(d) <= tol}
+}
+
+func disagreement(w []Warning, c *Check, what, unit, field string) []Warning {
+	if c.Agrees {
+		return w
+	}
+	return append(w, Warning{WarnMeasuredDisagrees, fmt.Sprintf(
+		"the measured %s %.4g differs from the one calculated from the composition, %.4g, by %.3g %s (tolerance %.3g): "+
+			"check the peak identification, the sample and the units", what, c.Measured, c.Calculated, c.Difference, unit, c.Tolerance),
+		[]any{"measured", field}})
 }
 
 // PropertiesOf calculates the certificate values of a profile already read.
