@@ -207,11 +207,12 @@ func TestValidBodyAllocatesNothing(t *testing.T) {
 // compiled validator checks does not start.
 func TestCompileRefusesUnknownKeywords(t *testing.T) {
 	for name, schema := range map[string]string{
-		"pattern":  `{type: string, pattern: '^a'}`,
-		"oneOf":    `{oneOf: [{type: string}, {type: number}]}`,
-		"format":   `{type: string, format: date}`,
-		"multiple": `{type: number, multipleOf: 2}`,
-		"allOf":    `{allOf: [{type: string}, {type: number}]}`,
+		"pattern":        `{type: string, pattern: '^a'}`,
+		"oneOf":          `{oneOf: [{type: string}, {type: string, maxLength: 3}]}`,
+		"oneOf nullable": `{oneOf: [{type: string, nullable: true}, {type: number}]}`,
+		"format":         `{type: string, format: date}`,
+		"multiple":       `{type: number, multipleOf: 2}`,
+		"allOf":          `{allOf: [{type: string}, {type: number}]}`,
 	} {
 		spec := `openapi: 3.0.3
 info: {title: t, version: "1"}
@@ -229,6 +230,54 @@ paths:
 		_, err := LoadSpec(context.Background(), []byte(spec))
 		require.Error(t, err, name)
 		require.Contains(t, err.Error(), "compiling", name)
+	}
+}
+
+// TestOneOfByKind: a oneOf over a string and an object hands each value to
+// the alternative of its kind, as kin-openapi would decide it.
+func TestOneOfByKind(t *testing.T) {
+	spec := `openapi: 3.0.3
+info: {title: t, version: "1"}
+paths:
+  /x:
+    post:
+      requestBody:
+        required: true
+        content:
+          application/json:
+            schema:
+              type: object
+              additionalProperties: false
+              properties:
+                s:
+                  oneOf:
+                    - {type: string, minLength: 1}
+                    - {type: object, required: [id], additionalProperties: false, properties: {id: {type: string}}}
+      responses:
+        "200": {description: ok}
+`
+	doc, err := LoadSpec(context.Background(), []byte(spec))
+	require.NoError(t, err)
+	schemas, err := compileBodies(doc)
+	require.NoError(t, err)
+	n := schemas["POST /x"]
+	for body, want := range map[string]string{
+		`{"s":"soybean"}`:        "",
+		`{"s":{"id":"x"}}`:       "",
+		`{"s":""}`:               "/s",
+		`{"s":5}`:                "/s",
+		`{"s":{"id":1}}`:         "/s/id",
+		`{"s":{"id":"x","y":1}}`: "/s/y",
+		`{"s":null}`:             "/s",
+	} {
+		v, _, err := validateBody(n, []byte(body))
+		require.NoError(t, err, body)
+		if want == "" {
+			require.Empty(t, v, body)
+			continue
+		}
+		require.NotEmpty(t, v, body)
+		require.Equal(t, want, v[0].Pointer, body)
 	}
 }
 

@@ -134,6 +134,15 @@ func (v *validator) readValue(n *schemaNode) error {
 	if kind == 0 {
 		return v.syntax(fmt.Sprintf("invalid character %q", c))
 	}
+	// A oneOf hands the value to the alternative of its kind.
+	if len(n.oneOf) > 0 {
+		for _, alt := range n.oneOf {
+			if alt.kinds&kind != 0 {
+				n = alt
+				break
+			}
+		}
+	}
 	// A value of a kind the schema does not admit is still read through,
 	// for syntax, without checking what is inside.
 	admitted := n.any || n.kinds&kind != 0
