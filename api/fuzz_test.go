@@ -13,6 +13,7 @@ import (
 // fuzzing, and its input checks are shared with the forecast's.
 var fuzzRoutes = []string{
 	"/v1/properties", "/v1/hydrogen-demand", "/v1/hardening/forecast", "/v1/melting", "/v1/melting/calibrate",
+	"/v1/conformity",
 }
 
 // FuzzPostBodies sends arbitrary bodies to every computing operation and
@@ -38,6 +39,7 @@ func FuzzPostBodies(f *testing.F) {
 	f.Add(uint8(4), `{"profile":`+pkoBelitz+`,"measured":{"slip_melting_point_c":27.6,"sfc_points":[{"temperature_c":20,"solid_fat_percent":38}]}}`)
 	f.Add(uint8(3), `{"profile":`+palmLike+`,"sn2_estimate":"palm_rule","temperatures_c":[-60,120]}`)
 	f.Add(uint8(0), `{"profile":{"acids":[{"acid":"18:1","percent":1e308}]}}`)
+	f.Add(uint8(5), `{"specification":{"id":"x","name":"x","acids":[{"acid":"C16:0+C18:0","max":16},{"acid":"trans","nd":true}]},"profile":`+palmLike+`}`)
 	app := newApp(f)
 	f.Fuzz(func(t *testing.T, route uint8, body string) {
 		path := fuzzRoutes[int(route)%len(fuzzRoutes)]

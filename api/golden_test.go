@@ -38,6 +38,9 @@ var goldenCases = []struct {
 	{"calibrate", http.MethodPost, "/v1/melting/calibrate", `{"profile":{"acids":[{"acid":"14:0","percent":1},{"acid":"16:0","percent":44},
 		{"acid":"18:0","percent":4.5},{"acid":"18:1 c9","percent":40},{"acid":"18:2 c9,c12","percent":10.5}]},"sn2_estimate":"palm_rule",
 		"measured":{"sfc_points":[{"temperature_c":20,"solid_fat_percent":26},{"temperature_c":30,"solid_fat_percent":8}],"slip_melting_point_c":36}}`},
+	{"reference-oils", http.MethodGet, "/v1/reference-oils", ""},
+	{"reference-oil", http.MethodGet, "/v1/reference-oils/sunflower_high_oleic", ""},
+	{"conformity", http.MethodPost, "/v1/conformity", "demo/conformity-request.json"},
 	{"healthz", http.MethodGet, "/healthz", ""},
 	{"readyz", http.MethodGet, "/readyz", ""},
 }

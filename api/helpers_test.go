@@ -87,7 +87,7 @@ func do(t testing.TB, app *service.App, c call) *httptest.ResponseRecorder {
 func validateResponse(t testing.TB, req *http.Request, rec *httptest.ResponseRecorder) {
 	t.Helper()
 	_, doc := loadSpec(t)
-	item := doc.Paths.Find(req.URL.Path)
+	template, item := findPath(doc, req.URL.Path)
 	var op *openapi3.Operation
 	if item != nil {
 		op = item.GetOperation(req.Method)
@@ -103,7 +103,7 @@ func validateResponse(t testing.TB, req *http.Request, rec *httptest.ResponseRec
 	input := &openapi3filter.ResponseValidationInput{
 		RequestValidationInput: &openapi3filter.RequestValidationInput{
 			Request: req,
-			Route:   &routers.Route{Spec: doc, Path: req.URL.Path, PathItem: item, Method: req.Method, Operation: op},
+			Route:   &routers.Route{Spec: doc, Path: template, PathItem: item, Method: req.Method, Operation: op},
 		},
 		Status:  rec.Code,
 		Header:  rec.Header(),
@@ -112,6 +112,32 @@ func validateResponse(t testing.TB, req *http.Request, rec *httptest.ResponseRec
 	}
 	require.NoError(t, openapi3filter.ValidateResponse(context.Background(), input),
 		"response to %s %s does not match openapi.yaml: %s", req.Method, req.URL.Path, rec.Body.String())
+}
+
+// findPath is the contract's path item for a request path, matching
+// templated segments such as {id}.
+func findPath(doc *openapi3.T, path string) (string, *openapi3.PathItem) {
+	if item := doc.Paths.Value(path); item != nil {
+		return path, item
+	}
+	segs := strings.Split(path, "/")
+	for template, item := range doc.Paths.Map() {
+		ts := strings.Split(template, "/")
+		if len(ts) != len(segs) {
+			continue
+		}
+		match := true
+		for i := range ts {
+			if ts[i] != segs[i] && !(strings.HasPrefix(ts[i], "{") && strings.HasSuffix(ts[i], "}") && segs[i] != "") {
+				match = false
+				break
+			}
+		}
+		if match {
+			return template, item
+		}
+	}
+	return path, nil
 }
 
 // decode reads a JSON response body.

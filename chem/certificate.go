@@ -288,30 +288,35 @@ func ComputeProperties(cat *Catalogue, in PropertiesInput) (Properties, error) {
 			return Properties{}, err
 		}
 		if mi.IodineValue != nil {
-			out.IodineValueCheck = check(*mi.IodineValue, out.IodineValue, ivTol)
-			out.Warnings = disagreement(out.Warnings, out.IodineValueCheck, "iodine value", "g I2/100 g", "iodine_value")
+			out.IodineValueCheck = CompareMeasured(*mi.IodineValue, out.IodineValue, ivTol)
+			out.Warnings = out.IodineValueCheck.AppendWarning(out.Warnings, "iodine value", "g I2/100 g", "measured", "iodine_value")
 		}
 		if mi.SaponificationValue != nil {
-			out.SaponificationValueCheck = check(*mi.SaponificationValue, out.SaponificationValue, svTol)
-			out.Warnings = disagreement(out.Warnings, out.SaponificationValueCheck, "saponification value", "mg KOH/g", "saponification_value")
+			out.SaponificationValueCheck = CompareMeasured(*mi.SaponificationValue, out.SaponificationValue, svTol)
+			out.Warnings = out.SaponificationValueCheck.AppendWarning(out.Warnings, "saponification value", "mg KOH/g", "measured", "saponification_value")
 		}
 	}
 	return out, nil
 }
 
-func check(measured, calculated, tol float64) *Check {
+// CompareMeasured checks a measured value against the calculated one with
+// a tolerance.
+func CompareMeasured(measured, calculated, tol float64) *Check {
 	d := measured - calculated
 	return &Check{Measured: measured, Calculated: calculated, Difference: d, Tolerance: tol, Agrees: math.Abs(d) <= tol}
 }
 
-func disagreement(w []Warning, c *Check, what, unit, field string) []Warning {
+// AppendWarning appends a WarnMeasuredDisagrees warning to w when c does
+// not agree; what names the value ("iodine value"), unit its unit, path
+// the measured field.
+func (c *Check) AppendWarning(w []Warning, what, unit string, path ...any) []Warning {
 	if c.Agrees {
 		return w
 	}
 	return append(w, Warning{WarnMeasuredDisagrees, fmt.Sprintf(
 		"the measured %s %.4g differs from the one calculated from the composition, %.4g, by %.3g %s (tolerance %.3g): "+
 			"check the peak identification, the sample and the units", what, c.Measured, c.Calculated, c.Difference, unit, c.Tolerance),
-		[]any{"measured", field}})
+		path})
 }
 
 // PropertiesOf calculates the certificate values of a profile already read.

@@ -438,9 +438,9 @@ func (c *Catalogue) suggest(n string, q *query) []string {
 		n = string([]rune(n)[:maxSuggestRunes])
 	}
 	for i, a := range c.acids {
-		best := levenshtein(n, strings.ToLower(a.ID))
+		best := EditDistance(n, strings.ToLower(a.ID))
 		for _, name := range c.names[i] {
-			if d := levenshtein(n, name); d < best {
+			if d := EditDistance(n, name); d < best {
 				best = d
 			}
 		}
@@ -463,8 +463,9 @@ func abs(n int) int {
 	return n
 }
 
-// levenshtein is the edit distance between two strings, by runes.
-func levenshtein(a, b string) int {
+// EditDistance is the Levenshtein distance between two strings, counted
+// in runes; the service uses it to suggest known names for misspelt ones.
+func EditDistance(a, b string) int {
 	ra, rb := []rune(a), []rune(b)
 	prev := make([]int, len(rb)+1)
 	cur := make([]int, len(rb)+1)

@@ -6,9 +6,12 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"os"
 	"strconv"
 	"strings"
 	"time"
+
+	"lipidsvc/chem/identity"
 )
 
 // Config is the service's whole configuration. Every field has a default
@@ -36,6 +39,12 @@ type Config struct {
 	// ShutdownTimeout bounds the wait for in-flight requests
 	// (LIPIDSVC_SHUTDOWN_TIMEOUT).
 	ShutdownTimeout time.Duration
+	// SpecFile is the plant's specification file (LIPIDSVC_SPEC_FILE),
+	// read at start-up; its specifications, in PlantSpecifications, add to
+	// or replace the embedded reference oils by id. A file that cannot be
+	// read or parsed stops start-up with the line and field at fault.
+	SpecFile            string
+	PlantSpecifications []*identity.Specification
 }
 
 // DefaultConfig is the configuration with nothing set.
@@ -100,6 +109,14 @@ func LoadConfig(args []string, getenv func(string) string) (Config, error) {
 	dur("LIPIDSVC_IDLE_TIMEOUT", &cfg.IdleTimeout)
 	dur("LIPIDSVC_DRAIN_DELAY", &cfg.DrainDelay)
 	dur("LIPIDSVC_SHUTDOWN_TIMEOUT", &cfg.ShutdownTimeout)
+	str("LIPIDSVC_SPEC_FILE", &cfg.SpecFile)
+	if cfg.SpecFile != "" {
+		specs, err := readSpecFile(cfg.SpecFile)
+		if err != nil {
+			errs = append(errs, err)
+		}
+		cfg.PlantSpecifications = specs
+	}
 
 	fs := flag.NewFlagSet("lipidsvc", flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
@@ -137,6 +154,8 @@ func (c Config) LogValue() slog.Value {
 		slog.String("addr", c.Addr),
 		slog.String("metrics_addr", c.MetricsAddr),
 		slog.String("log_level", c.LogLevel.String()),
+		slog.String("spec_file", c.SpecFile),
+		slog.Int("plant_specifications", len(c.PlantSpecifications)),
 		slog.Int64("body_limit_bytes", c.BodyLimitBytes),
 		slog.String("request_timeout", c.RequestTimeout.String()),
 		slog.String("read_header_timeout", c.ReadHeaderTimeout.String()),
@@ -146,4 +165,17 @@ func (c Config) LogValue() slog.Value {
 		slog.String("drain_delay", c.DrainDelay.String()),
 		slog.String("shutdown_timeout", c.ShutdownTimeout.String()),
 	)
+}
+
+// readSpecFile reads and parses the plant's specification file.
+func readSpecFile(path string) ([]*identity.Specification, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("LIPIDSVC_SPEC_FILE: %w", err)
+	}
+	specs, err := identity.ParseDocument(data)
+	if err != nil {
+		return nil, fmt.Errorf("LIPIDSVC_SPEC_FILE %s: %w", path, err)
+	}
+	return specs, nil
 }

@@ -2,10 +2,14 @@ package service
 
 import (
 	"log/slog"
+	"os"
+	"path/filepath"
 	"testing"
 	"time"
 
 	"github.com/stretchr/testify/require"
+
+	"lipidsvc/chem/identity"
 )
 
 func env(m map[string]string) func(string) string {
@@ -94,4 +98,44 @@ func TestMetricsRecordDomainEvents(t *testing.T) {
 		"lipidsvc_http_requests_total", "lipidsvc_http_request_duration_seconds", "go_goroutines"} {
 		require.True(t, seen[name], name)
 	}
+}
+
+// A plant specification file adds and replaces specifications; a bad one
+// stops start-up with the line and field at fault.
+func TestConfigSpecificationFile(t *testing.T) {
+	dir := t.TempDir()
+	good := filepath.Join(dir, "specs.json")
+	require.NoError(t, os.WriteFile(good, []byte(`{"specifications": [
+  {"id": "nb-soy-intake", "name": "Northbay crude soybean oil intake",
+   "acids": [{"acid": "C18:3", "max": 8.0}], "iodine_value": {"min": 128, "max": 138}},
+  {"id": "palm", "name": "Palm oil, Northbay intake", "acids": [{"acid": "C16:0", "min": 42, "max": 46}]}
+]}`), 0o644))
+	cfg, err := LoadConfig(nil, env(map[string]string{"LIPIDSVC_SPEC_FILE": good}))
+	require.NoError(t, err)
+	require.Len(t, cfg.PlantSpecifications, 2)
+	lib := identity.NewLibrary(cfg.PlantSpecifications)
+	palm, ok := lib.ByID("palm")
+	require.True(t, ok)
+	require.True(t, palm.Plant, "the plant's palm replaces the reference one")
+	require.Len(t, palm.Acids, 1)
+	_, ok = lib.ByID("nb-soy-intake")
+	require.True(t, ok)
+	_, ok = lib.ByID("soybean")
+	require.True(t, ok, "the references the file does not name stay")
+
+	bad := filepath.Join(dir, "bad.json")
+	require.NoError(t, os.WriteFile(bad, []byte(`{"specifications": [
+  {"id": "nb-soy-intake", "name": "Northbay crude soybean oil intake",
+   "acids": [
+     {"acid": "C18:3", "max": 8.0},
+     {"acid": "C16:0", "min": 14, "max": 9}
+   ]}
+]}`), 0o644))
+	_, err = LoadConfig(nil, env(map[string]string{"LIPIDSVC_SPEC_FILE": bad}))
+	require.Error(t, err)
+	require.Contains(t, err.Error(), "LIPIDSVC_SPEC_FILE")
+	require.Contains(t, err.Error(), "line 5, /specifications/0/acids/1/max")
+
+	_, err = LoadConfig(nil, env(map[string]string{"LIPIDSVC_SPEC_FILE": filepath.Join(dir, "missing.json")}))
+	require.ErrorContains(t, err, "LIPIDSVC_SPEC_FILE")
 }

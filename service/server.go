@@ -16,6 +16,7 @@ import (
 
 	"lipidsvc/api"
 	"lipidsvc/chem"
+	"lipidsvc/chem/identity"
 )
 
 // App is the assembled HTTP handler with the state the lifecycle needs.
@@ -49,6 +50,7 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 	)
 	api.Routes(e, api.Deps{
 		Catalogue: chem.NewCatalogue(),
+		Library:   identity.NewLibrary(cfg.PlantSpecifications),
 		Spec:      spec,
 		Ready:     a.ready.Load,
 		Recorder:  a.Metrics,
