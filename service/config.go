@@ -11,6 +11,7 @@ import (
 	"strings"
 	"time"
 
+	"lipidsvc/api"
 	"lipidsvc/chem/identity"
 )
 
@@ -173,7 +174,7 @@ func readSpecFile(path string) ([]*identity.Specification, error) {
 	if err != nil {
 		return nil, fmt.Errorf("LIPIDSVC_SPEC_FILE: %w", err)
 	}
-	specs, err := identity.ParseDocument(data)
+	specs, err := api.ParseSpecificationDocument(data)
 	if err != nil {
 		return nil, fmt.Errorf("LIPIDSVC_SPEC_FILE %s: %w", path, err)
 	}

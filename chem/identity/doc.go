@@ -23,11 +23,12 @@
 // blended lot lies away from every box. The distance counts composition
 // only; the verdict counts the values too.
 //
-// The embedded reference catalogue (reference_oils.json) records for every
-// specification its standard, edition, table and where the numbers were
-// read, and marks ranges recalled rather than read. [ParseDocument] reads
-// the same format from a plant's file and reports every problem with its
-// line and JSON pointer. [Conform] is the request-shaped entry point.
+// The embedded reference catalogue ([References], data in references.go)
+// records for every specification its standard, edition, table and where
+// the numbers were read, and marks ranges recalled rather than read. A
+// plant's own specifications come in as [SpecificationInput] values (the
+// service reads them from a file). [Conform] is the request-shaped entry
+// point.
 //
 // The package is pure: value types and deterministic functions that import
 // only the standard library and lipidsvc/chem.

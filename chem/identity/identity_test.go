@@ -206,41 +206,6 @@ func TestFuelLimits(t *testing.T) {
 	}
 }
 
-// A plant file's errors name the line and the field.
-func TestDocumentErrorsNameLineAndField(t *testing.T) {
-	doc := `{"specifications": [
-  {"id": "northbay_blend_a", "name": "Northbay frying blend A",
-   "acids": [
-     {"acid": "C16:0", "min": 8, "max": 12},
-     {"acid": "C18:1", "min": 60, "max": 50}
-   ]},
-  {"id": "Bad Id", "name": "x", "acids": [{"acid": "C99:0", "max": 1}]}
-]}`
-	_, err := ParseDocument([]byte(doc))
-	require.Error(t, err)
-	var de DocumentErrors
-	require.ErrorAs(t, err, &de)
-	byPtr := map[string]int{}
-	for _, e := range de {
-		byPtr[e.Pointer] = e.Line
-	}
-	require.Equal(t, 5, byPtr["/specifications/0/acids/1/max"], err.Error())
-	require.Equal(t, 7, byPtr["/specifications/1/id"], err.Error())
-	require.Equal(t, 7, byPtr["/specifications/1/acids/0/acid"], err.Error())
-
-	_, err = ParseDocument([]byte("{\"specifications\": [\n  {\"id\": \"a\",\n}"))
-	require.ErrorAs(t, err, &de)
-	require.Equal(t, 3, de[0].Line, err.Error())
-
-	specs, err := ParseDocument([]byte(`{"specifications":[{"id":"soybean","name":"Northbay soybean oil, tighter","acids":[{"acid":"C18:3","min":6,"max":8}]}]}`))
-	require.NoError(t, err)
-	lib := NewLibrary(specs)
-	s, _ := lib.ByID("soybean")
-	require.True(t, s.Plant)
-	require.Len(t, s.Acids, 1, "a plant specification replaces the reference of the same id")
-	require.Len(t, lib.All(), len(References()))
-}
-
 func TestSelectors(t *testing.T) {
 	for sel, ok := range map[string]bool{
 		"C18:1": true, "18:1": true, "C18:1 trans": true, "C18:1 T": true, "C18:2 trans + C18:3 trans": true,

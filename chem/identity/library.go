@@ -1,7 +1,6 @@
 package identity
 
 import (
-	_ "embed"
 	"fmt"
 	"sort"
 	"strings"
@@ -10,28 +9,23 @@ import (
 	"lipidsvc/chem"
 )
 
-// referenceDocument is the embedded reference catalogue: the identity
-// ranges of the Codex named vegetable oils (CXS 210) and olive oils (CXS
-// 33), and the composition limits of EN 14214 for fatty-acid methyl
-// esters, each row with its standard, edition, table and source.
-//
-//go:embed reference_oils.json
-var referenceDocument []byte
-
 var (
 	referencesOnce sync.Once
 	references     []*Specification
 )
 
-// References returns the embedded reference specifications, parsed once.
-// It panics if the embedded document is invalid, which the tests rule out.
+// References returns the embedded reference specifications (see
+// references.go), built once. It panics if one of them is invalid, which
+// the tests rule out.
 func References() []*Specification {
 	referencesOnce.Do(func() {
-		specs, err := ParseDocument(referenceDocument)
-		if err != nil {
-			panic("identity: the embedded reference catalogue is invalid: " + err.Error())
+		for i := range referenceInputs {
+			s, err := referenceInputs[i].Build()
+			if err != nil {
+				panic(fmt.Sprintf("identity: reference %q is invalid: %v", referenceInputs[i].ID, err))
+			}
+			references = append(references, s)
 		}
-		references = specs
 	})
 	return references
 }

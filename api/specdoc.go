@@ -1,4 +1,4 @@
-package identity
+package api
 
 import (
 	"bytes"
@@ -9,36 +9,38 @@ import (
 	"strings"
 
 	"lipidsvc/chem"
+	"lipidsvc/chem/identity"
 )
 
 // A specification document is JSON: {"specifications": [ … ]}, each
-// specification an object with the fields of SpecificationInput in
+// specification an object with the fields of identity.SpecificationInput in
 // snake_case ("id", "name", "kind", "standard", "edition", "table",
 // "source", "recalled", "notes", "basis", "material", "acids", "iodine_value",
 // "saponification_value", "slip_melting_point_c"); an acid row is {"acid":
 // "C16:0", "min": 8, "max": 13.5} or {"acid": "C6:0", "nd": true}; a
-// range is {"min": …, "max": …}. The embedded reference catalogue and a
-// plant's specification file share the format.
+// range is {"min": …, "max": …}: the fields of an inline specification in a
+// conformity request. A plant's specification file (LIPIDSVC_SPEC_FILE) has
+// this format.
 
-// DocumentError is a problem in a specification document, located by line
+// SpecificationDocumentError is a problem in a specification document, located by line
 // and JSON pointer.
-type DocumentError struct {
+type SpecificationDocumentError struct {
 	Line    int
 	Pointer string
 	Reason  string
 }
 
-func (e DocumentError) Error() string {
+func (e SpecificationDocumentError) Error() string {
 	if e.Pointer == "" {
 		return fmt.Sprintf("line %d: %s", e.Line, e.Reason)
 	}
 	return fmt.Sprintf("line %d, %s: %s", e.Line, e.Pointer, e.Reason)
 }
 
-// DocumentErrors are all the problems of one document.
-type DocumentErrors []DocumentError
+// SpecificationDocumentErrors are all the problems of one document.
+type SpecificationDocumentErrors []SpecificationDocumentError
 
-func (es DocumentErrors) Error() string {
+func (es SpecificationDocumentErrors) Error() string {
 	parts := make([]string, len(es))
 	for i, e := range es {
 		parts[i] = e.Error()
@@ -46,29 +48,29 @@ func (es DocumentErrors) Error() string {
 	return strings.Join(parts, "; ")
 }
 
-// ParseDocument reads a specification document. Every problem is reported,
+// ParseSpecificationDocument reads a specification document. Every problem is reported,
 // each with its line and the JSON pointer of the offending field, as
-// DocumentErrors.
-func ParseDocument(data []byte) ([]*Specification, error) {
+// SpecificationDocumentErrors.
+func ParseSpecificationDocument(data []byte) ([]*identity.Specification, error) {
 	data = bytes.TrimPrefix(data, []byte{0xEF, 0xBB, 0xBF})
 	var root any
 	dec := json.NewDecoder(bytes.NewReader(data))
 	if err := dec.Decode(&root); err != nil {
 		line := 1
 		if se, ok := err.(*json.SyntaxError); ok {
-			line = lineAt(data, int(se.Offset))
+			line = specLineAt(data, int(se.Offset))
 		}
-		return nil, DocumentErrors{{Line: line, Reason: "not valid JSON: " + err.Error()}}
+		return nil, SpecificationDocumentErrors{{Line: line, Reason: "not valid JSON: " + err.Error()}}
 	}
 	if _, err := dec.Token(); err != io.EOF {
-		return nil, DocumentErrors{{Line: lineAt(data, int(dec.InputOffset())), Reason: "data after the document"}}
+		return nil, SpecificationDocumentErrors{{Line: specLineAt(data, int(dec.InputOffset())), Reason: "data after the document"}}
 	}
-	offsets := locate(data)
+	offsets := specLocate(data)
 	var bad chem.FieldErrors
 	obj, ok := root.(map[string]any)
 	if !ok {
 		bad.Invalid("the document must be an object with a \"specifications\" array")
-		return nil, documentErrors(bad.Err(""), data, offsets)
+		return nil, specDocumentErrors(bad.Err(""), data, offsets)
 	}
 	for k := range obj {
 		if k != "specifications" && k != "about" {
@@ -78,12 +80,12 @@ func ParseDocument(data []byte) ([]*Specification, error) {
 	list, ok := obj["specifications"].([]any)
 	if !ok {
 		bad.Invalid("must be an array of specifications", "specifications")
-		return nil, documentErrors(bad.Err(""), data, offsets)
+		return nil, specDocumentErrors(bad.Err(""), data, offsets)
 	}
-	var out []*Specification
+	var out []*identity.Specification
 	ids := map[string]int{}
 	for i, v := range list {
-		in := decodeSpecification(&bad, v, "specifications", i)
+		in := decodeSpecDoc(&bad, v, "specifications", i)
 		if in == nil {
 			continue
 		}
@@ -100,33 +102,21 @@ func ParseDocument(data []byte) ([]*Specification, error) {
 		out = append(out, s)
 	}
 	if err := bad.Err(""); err != nil {
-		return nil, documentErrors(err, data, offsets)
+		return nil, specDocumentErrors(err, data, offsets)
 	}
 	return out, nil
 }
 
-// DecodeSpecification reads one specification from a decoded JSON value
-// (as encoding/json decodes into any); errors are *chem.Error values with
-// paths relative to the value.
-func DecodeSpecification(v any) (*SpecificationInput, error) {
-	var bad chem.FieldErrors
-	in := decodeSpecification(&bad, v)
-	if err := bad.Err("the specification is not valid"); err != nil {
-		return nil, err
-	}
-	return in, nil
-}
-
-// decodeSpecification reads one specification object into its input form,
+// decodeSpecDoc reads one specification object into its input form,
 // recording problems at path.
-func decodeSpecification(bad *chem.FieldErrors, v any, path ...any) *SpecificationInput {
+func decodeSpecDoc(bad *chem.FieldErrors, v any, path ...any) *identity.SpecificationInput {
 	obj, ok := v.(map[string]any)
 	if !ok {
 		bad.Invalid("must be an object", path...)
 		return nil
 	}
 	at := func(p ...any) []any { return append(append([]any{}, path...), p...) }
-	in := &SpecificationInput{}
+	in := &identity.SpecificationInput{}
 	str := func(key string, dst *string) {
 		if x, ok := obj[key]; ok {
 			if s, ok := x.(string); ok {
@@ -152,12 +142,12 @@ func decodeSpecification(bad *chem.FieldErrors, v any, path ...any) *Specificati
 				continue
 			}
 			for i, r := range rows {
-				if row, ok := decodeRow(bad, r, at(k, i)...); ok {
+				if row, ok := decodeSpecRow(bad, r, at(k, i)...); ok {
 					in.Acids = append(in.Acids, row)
 				}
 			}
 		case "iodine_value", "saponification_value", "slip_melting_point_c":
-			r := decodeRange(bad, x, at(k)...)
+			r := decodeSpecRange(bad, x, at(k)...)
 			switch k {
 			case "iodine_value":
 				in.IodineValue = r
@@ -183,14 +173,14 @@ func decodeSpecification(bad *chem.FieldErrors, v any, path ...any) *Specificati
 	return in
 }
 
-func decodeRow(bad *chem.FieldErrors, v any, path ...any) (RowInput, bool) {
+func decodeSpecRow(bad *chem.FieldErrors, v any, path ...any) (identity.RowInput, bool) {
 	obj, ok := v.(map[string]any)
 	if !ok {
 		bad.Invalid("must be an object such as {\"acid\": \"C16:0\", \"min\": 8, \"max\": 13.5}", path...)
-		return RowInput{}, false
+		return identity.RowInput{}, false
 	}
 	at := func(p ...any) []any { return append(append([]any{}, path...), p...) }
-	var r RowInput
+	var r identity.RowInput
 	okRow := true
 	for k, x := range obj {
 		switch k {
@@ -232,13 +222,13 @@ func decodeRow(bad *chem.FieldErrors, v any, path ...any) (RowInput, bool) {
 	return r, okRow
 }
 
-func decodeRange(bad *chem.FieldErrors, v any, path ...any) *RangeInput {
+func decodeSpecRange(bad *chem.FieldErrors, v any, path ...any) *identity.RangeInput {
 	obj, ok := v.(map[string]any)
 	if !ok {
 		bad.Invalid("must be an object {\"min\": …, \"max\": …}", path...)
 		return nil
 	}
-	r := &RangeInput{}
+	r := &identity.RangeInput{}
 	for k, x := range obj {
 		f, isNum := x.(float64)
 		switch {
@@ -255,21 +245,21 @@ func decodeRange(bad *chem.FieldErrors, v any, path ...any) *RangeInput {
 	return r
 }
 
-// documentErrors turns a *chem.Error into located document errors.
-func documentErrors(err error, data []byte, offsets map[string]int) error {
+// specDocumentErrors turns a *chem.Error into located document errors.
+func specDocumentErrors(err error, data []byte, offsets map[string]int) error {
 	ce, ok := chem.AsError(err)
 	if !ok {
 		return err
 	}
-	var out DocumentErrors
+	var out SpecificationDocumentErrors
 	for _, f := range ce.Fields {
-		ptr := pointer(f.Path)
+		ptr := specPointer(f.Path)
 		// The nearest located ancestor (a missing field is located by its
 		// object).
 		line := 1
 		for p := ptr; ; {
 			if off, ok := offsets[p]; ok {
-				line = lineAt(data, off)
+				line = specLineAt(data, off)
 				break
 			}
 			i := strings.LastIndexByte(p, '/')
@@ -278,16 +268,16 @@ func documentErrors(err error, data []byte, offsets map[string]int) error {
 			}
 			p = p[:i]
 		}
-		out = append(out, DocumentError{Line: line, Pointer: ptr, Reason: f.Reason})
+		out = append(out, SpecificationDocumentError{Line: line, Pointer: ptr, Reason: f.Reason})
 	}
 	if len(out) == 0 {
-		out = append(out, DocumentError{Line: 1, Reason: ce.Message})
+		out = append(out, SpecificationDocumentError{Line: 1, Reason: ce.Message})
 	}
 	return out
 }
 
-// pointer is the RFC 6901 pointer of a path.
-func pointer(path []any) string {
+// specPointer is the RFC 6901 pointer of a path.
+func specPointer(path []any) string {
 	var b strings.Builder
 	for _, p := range path {
 		b.WriteByte('/')
@@ -303,12 +293,12 @@ func pointer(path []any) string {
 	return b.String()
 }
 
-// locate maps the JSON pointer of every value in data to the byte offset
+// specLocate maps the JSON pointer of every value in data to the byte offset
 // where it starts.
-func locate(data []byte) map[string]int {
+func specLocate(data []byte) map[string]int {
 	out := map[string]int{}
 	dec := json.NewDecoder(bytes.NewReader(data))
-	var stack []locFrame
+	var stack []specLocFrame
 	path := func() string {
 		var b strings.Builder
 		for _, f := range stack {
@@ -338,12 +328,12 @@ func locate(data []byte) map[string]int {
 			stack[n-1].key, stack[n-1].want = tok.(string), false
 			continue
 		}
-		out[path()] = skipSeparators(data, start)
+		out[path()] = specSkipSeparators(data, start)
 		switch tok {
 		case json.Delim('{'):
-			stack = append(stack, locFrame{want: true})
+			stack = append(stack, specLocFrame{want: true})
 		case json.Delim('['):
-			stack = append(stack, locFrame{array: true})
+			stack = append(stack, specLocFrame{array: true})
 		default:
 			if n := len(stack); n > 0 {
 				stack[n-1].advance()
@@ -352,8 +342,8 @@ func locate(data []byte) map[string]int {
 	}
 }
 
-// locFrame is one open object or array while locating values.
-type locFrame struct {
+// specLocFrame is one open object or array while locating values.
+type specLocFrame struct {
 	array bool
 	index int
 	key   string
@@ -361,7 +351,7 @@ type locFrame struct {
 }
 
 // advance moves past one value: the next index, or the next key.
-func (f *locFrame) advance() {
+func (f *specLocFrame) advance() {
 	if f.array {
 		f.index++
 	} else {
@@ -369,17 +359,17 @@ func (f *locFrame) advance() {
 	}
 }
 
-// skipSeparators moves past whitespace, commas and colons to where the
+// specSkipSeparators moves past whitespace, commas and colons to where the
 // value itself starts.
-func skipSeparators(data []byte, i int) int {
+func specSkipSeparators(data []byte, i int) int {
 	for i < len(data) && strings.IndexByte(" \t\r\n,:", data[i]) >= 0 {
 		i++
 	}
 	return i
 }
 
-// lineAt is the 1-based line of a byte offset.
-func lineAt(data []byte, off int) int {
+// specLineAt is the 1-based line of a byte offset.
+func specLineAt(data []byte, off int) int {
 	if off > len(data) {
 		off = len(data)
 	}
