@@ -159,7 +159,9 @@ type Properties struct {
 	// measured values with the exact calculated ones; nil when none was
 	// sent.
 	IodineValueCheck, SaponificationValueCheck *Check
-	Warnings                                   []Warning
+	// Nutrition holds the label figures when the request asked for them.
+	Nutrition *Nutrition
+	Warnings  []Warning
 }
 
 // CoxScopePercent is the share of polyunsaturated acids outside Cox's
@@ -221,6 +223,9 @@ type PropertiesInput struct {
 	// Measured holds laboratory values to check the calculation against;
 	// optional. Paths: "measured", "iodine_value", ….
 	Measured *MeasuredInput
+	// Nutrition asks for the nutrition-label figures; optional. Paths:
+	// "nutrition", "food_class", ….
+	Nutrition *NutritionInput
 }
 
 // MeasuredInput is a sample's measured iodine and saponification values
@@ -295,6 +300,18 @@ func ComputeProperties(cat *Catalogue, in PropertiesInput) (Properties, error) {
 			out.SaponificationValueCheck = CompareMeasured(*mi.SaponificationValue, out.SaponificationValue, svTol)
 			out.Warnings = out.SaponificationValueCheck.AppendWarning(out.Warnings, "saponification value", "mg KOH/g", "measured", "saponification_value")
 		}
+	}
+	if in.Nutrition != nil {
+		n, err := NutritionOf(p, m, *in.Nutrition)
+		if err != nil {
+			return Properties{}, PrefixError(err, "nutrition")
+		}
+		for _, w := range n.Warnings {
+			w.Path = append([]any{"nutrition"}, w.Path...)
+			out.Warnings = append(out.Warnings, w)
+		}
+		n.Warnings = nil
+		out.Nutrition = &n
 	}
 	return out, nil
 }
