@@ -13,6 +13,56 @@ type PropertiesRequest struct {
 	Profile  *ProfileBody  `json:"profile"`
 	Material string        `json:"material,omitempty"`
 	Measured *MeasuredBody `json:"measured,omitempty"`
+	// Nutrition asks for the nutrition-label figures.
+	Nutrition *NutritionBody `json:"nutrition,omitempty"`
+}
+
+// NutritionBody asks for the nutrition-label figures: the fat content of
+// the food and the conversion factor (by food class, given, or from the
+// composition).
+type NutritionBody struct {
+	FatGPer100gFood  *float64 `json:"fat_g_per_100g_food,omitempty"`
+	FoodClass        string   `json:"food_class,omitempty"`
+	ConversionFactor *float64 `json:"conversion_factor,omitempty"`
+}
+
+// NutritionResult is the nutrition-label figures of a profile.
+type NutritionResult struct {
+	// ConversionFactor is g fatty acids per g fat; its source is
+	// "composition", "food_class" or "given".
+	ConversionFactor       float64           `json:"conversion_factor"`
+	ConversionFactorSource string            `json:"conversion_factor_source"`
+	FoodClass              *FoodClassBody    `json:"food_class,omitempty"`
+	FatGPer100gFood        *float64          `json:"fat_g_per_100g_food,omitempty"`
+	Per100gFat             LabelFiguresBody  `json:"per_100g_fat"`
+	Per100gFood            *LabelFiguresBody `json:"per_100g_food,omitempty"`
+	EPADHAMgPerGFat        float64           `json:"epa_dha_mg_per_g_fat"`
+	EPADHAAsTAGMgPerGFat   float64           `json:"epa_dha_as_triacylglycerols_mg_per_g_fat"`
+}
+
+// FoodClassBody is the food class whose conversion factor was used.
+type FoodClassBody struct {
+	ID     string  `json:"id"`
+	Name   string  `json:"name"`
+	Factor float64 `json:"factor"`
+}
+
+// LabelFiguresBody is the label's fatty-acid figures in grams.
+type LabelFiguresBody struct {
+	TotalFattyAcidsG  float64 `json:"total_fatty_acids_g"`
+	SaturatedG        float64 `json:"saturated_g"`
+	MonounsaturatedG  float64 `json:"monounsaturated_g"`
+	PolyunsaturatedG  float64 `json:"polyunsaturated_g"`
+	TransG            float64 `json:"trans_g"`
+	Trans181G         float64 `json:"trans_18_1_g"`
+	Trans182G         float64 `json:"trans_18_2_g"`
+	Trans183G         float64 `json:"trans_18_3_g"`
+	TransOtherG       float64 `json:"trans_other_chains_g"`
+	OtherUnsaturatedG float64 `json:"other_unsaturated_g"`
+	N3G               float64 `json:"n3_g"`
+	N6G               float64 `json:"n6_g"`
+	EPAG              float64 `json:"epa_g"`
+	DHAG              float64 `json:"dha_g"`
 }
 
 // MeasuredBody is the laboratory's measured iodine and saponification
@@ -54,6 +104,7 @@ type PropertiesResponse struct {
 	Indices                 IndicesBody         `json:"indices"`
 	Acids                   []AcidResultBody    `json:"acids"`
 	MeasuredComparison      *MeasuredComparison `json:"measured_comparison,omitempty"`
+	Nutrition               *NutritionResult    `json:"nutrition,omitempty"`
 	Warnings                []WarningBody       `json:"warnings"`
 }
 
@@ -90,6 +141,8 @@ type CompositionSums struct {
 type IndicesBody struct {
 	CalculatedOxidizability float64  `json:"calculated_oxidizability"`
 	CoxOutsidePercent       float64  `json:"calculated_oxidizability_outside_percent"`
+	AllylicPositions        float64  `json:"allylic_position_equivalent"`
+	BisAllylicPositions     float64  `json:"bis_allylic_position_equivalent"`
 	AtherogenicIndex        *float64 `json:"atherogenic_index"`
 	ThrombogenicIndex       *float64 `json:"thrombogenic_index"`
 }
@@ -111,6 +164,9 @@ func (r *PropertiesRequest) input() chem.PropertiesInput {
 	if m := r.Measured; m != nil {
 		in.Measured = &chem.MeasuredInput{IodineValue: m.IodineValue, SaponificationValue: m.SaponificationValue,
 			IodineValueTolerance: m.IodineValueTolerance, SaponificationValueTolerance: m.SaponificationValueTolerance}
+	}
+	if n := r.Nutrition; n != nil {
+		in.Nutrition = &chem.NutritionInput{FatGPer100gFood: n.FatGPer100gFood, FoodClass: n.FoodClass, ConversionFactor: n.ConversionFactor}
 	}
 	return in
 }
@@ -163,12 +219,14 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 			N3Percent:                      round(p.Sums.N3, sum),
 			N6Percent:                      round(p.Sums.N6, sum),
 			N9Percent:                      round(p.Sums.N9, sum),
-			N6ToN3Ratio:                    roundPtr(p.Sums.N6ToN3, sum),
-			PolyunsaturatedToSaturatedRate: roundPtr(p.Sums.PToS, sum),
+			N6ToN3Ratio:                    roundPtr(p.Sums.N6ToN3, decimalsRatio),
+			PolyunsaturatedToSaturatedRate: roundPtr(p.Sums.PToS, decimalsRatio),
 		},
 		Indices: IndicesBody{
-			CalculatedOxidizability: round(p.Indices.Cox, sum),
-			CoxOutsidePercent:       round(p.Indices.CoxOutsidePercent, sum),
+			CalculatedOxidizability: round(p.Indices.Cox, decimalsRatio),
+			CoxOutsidePercent:       round(p.Indices.CoxOutsidePercent, decimalsRatio),
+			AllylicPositions:        round(p.Indices.AllylicPositionEquivalent, decimalsSum),
+			BisAllylicPositions:     round(p.Indices.BisAllylicPositionEquivalent, decimalsSum),
 			AtherogenicIndex:        roundPtr(p.Indices.Atherogenic, decimalsIndex),
 			ThrombogenicIndex:       roundPtr(p.Indices.Thrombogenic, decimalsIndex),
 		},
@@ -187,6 +245,9 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 			SaponificationValue: fromCheck(p.SaponificationValueCheck),
 		}
 	}
+	if n := p.Nutrition; n != nil {
+		out.Nutrition = fromNutrition(n)
+	}
 	for i, a := range p.Acids {
 		r := AcidResultBody{
 			Acid:                    a.Acid.ID,
@@ -202,6 +263,38 @@ func fromProperties(p chem.Properties) PropertiesResponse {
 		out.Acids[i] = r
 	}
 	return out
+}
+
+// fromNutrition converts the label figures.
+func fromNutrition(n *chem.Nutrition) *NutritionResult {
+	out := &NutritionResult{
+		ConversionFactor:       round(n.Factor, decimalsFactor),
+		ConversionFactorSource: n.FactorSource,
+		FatGPer100gFood:        n.FatGPer100gFood,
+		Per100gFat:             fromLabelFigures(n.PerFat),
+		EPADHAMgPerGFat:        round(n.EPADHAPerGFat, decimalsMgPerG),
+		EPADHAAsTAGMgPerGFat:   round(n.EPADHAAsTAGPerGFat, decimalsMgPerG),
+	}
+	if f := n.FoodClass; f != nil {
+		out.FoodClass = &FoodClassBody{ID: f.ID, Name: f.Name, Factor: f.Factor}
+	}
+	if n.PerFood != nil {
+		f := fromLabelFigures(*n.PerFood)
+		out.Per100gFood = &f
+	}
+	return out
+}
+
+func fromLabelFigures(f chem.LabelFigures) LabelFiguresBody {
+	const g = decimalsGrams
+	return LabelFiguresBody{
+		TotalFattyAcidsG: round(f.TotalFattyAcids, g), SaturatedG: round(f.Saturated, g),
+		MonounsaturatedG: round(f.Monounsaturated, g), PolyunsaturatedG: round(f.Polyunsaturated, g),
+		TransG: round(f.Trans, g), Trans181G: round(f.Trans181, g), Trans182G: round(f.Trans182, g),
+		Trans183G: round(f.Trans183, g), TransOtherG: round(f.TransOther, g),
+		OtherUnsaturatedG: round(f.OtherUnsaturated, g), N3G: round(f.N3, g), N6G: round(f.N6, g),
+		EPAG: round(f.EPA, g), DHAG: round(f.DHA, g),
+	}
 }
 
 // fromCheck converts one check, nil for none.

@@ -59,6 +59,8 @@ func (r *PropertiesResponse) AppendJSON(b []byte) ([]byte, error) {
 	w.open('{')
 	w.num("calculated_oxidizability", r.Indices.CalculatedOxidizability)
 	w.num("calculated_oxidizability_outside_percent", r.Indices.CoxOutsidePercent)
+	w.num("allylic_position_equivalent", r.Indices.AllylicPositions)
+	w.num("bis_allylic_position_equivalent", r.Indices.BisAllylicPositions)
 	w.numPtr("atherogenic_index", r.Indices.AtherogenicIndex)
 	w.numPtr("thrombogenic_index", r.Indices.ThrombogenicIndex)
 	w.close('}')
@@ -89,10 +91,60 @@ func (r *PropertiesResponse) AppendJSON(b []byte) ([]byte, error) {
 		w.check("saponification_value", mc.SaponificationValue)
 		w.close('}')
 	}
+	if n := r.Nutrition; n != nil {
+		w.key("nutrition")
+		w.nutrition(n)
+	}
 	w.key("warnings")
 	w.warnings(r.Warnings)
 	w.close('}')
 	return w.b, w.err
+}
+
+// nutrition writes the label figures.
+func (w *jsonWriter) nutrition(n *NutritionResult) {
+	w.open('{')
+	w.num("conversion_factor", n.ConversionFactor)
+	w.str("conversion_factor_source", n.ConversionFactorSource)
+	if f := n.FoodClass; f != nil {
+		w.key("food_class")
+		w.open('{')
+		w.str("id", f.ID)
+		w.str("name", f.Name)
+		w.num("factor", f.Factor)
+		w.close('}')
+	}
+	if n.FatGPer100gFood != nil {
+		w.numPtr("fat_g_per_100g_food", n.FatGPer100gFood)
+	}
+	w.key("per_100g_fat")
+	w.labelFigures(&n.Per100gFat)
+	if n.Per100gFood != nil {
+		w.key("per_100g_food")
+		w.labelFigures(n.Per100gFood)
+	}
+	w.num("epa_dha_mg_per_g_fat", n.EPADHAMgPerGFat)
+	w.num("epa_dha_as_triacylglycerols_mg_per_g_fat", n.EPADHAAsTAGMgPerGFat)
+	w.close('}')
+}
+
+func (w *jsonWriter) labelFigures(f *LabelFiguresBody) {
+	w.open('{')
+	w.num("total_fatty_acids_g", f.TotalFattyAcidsG)
+	w.num("saturated_g", f.SaturatedG)
+	w.num("monounsaturated_g", f.MonounsaturatedG)
+	w.num("polyunsaturated_g", f.PolyunsaturatedG)
+	w.num("trans_g", f.TransG)
+	w.num("trans_18_1_g", f.Trans181G)
+	w.num("trans_18_2_g", f.Trans182G)
+	w.num("trans_18_3_g", f.Trans183G)
+	w.num("trans_other_chains_g", f.TransOtherG)
+	w.num("other_unsaturated_g", f.OtherUnsaturatedG)
+	w.num("n3_g", f.N3G)
+	w.num("n6_g", f.N6G)
+	w.num("epa_g", f.EPAG)
+	w.num("dha_g", f.DHAG)
+	w.close('}')
 }
 
 // MarshalJSON is AppendJSON for encoders (a forecast's product

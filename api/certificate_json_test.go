@@ -35,6 +35,10 @@ func TestPropertiesJSONMatchesEncoder(t *testing.T) {
 			Measured: &chem.MeasuredInput{IodineValue: ptr(49.0), SaponificationValue: ptr(200.0)}},
 		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 40}, {Acid: "18:1", Percent: 60}}},
 			Measured: &chem.MeasuredInput{SaponificationValue: ptr(190.5)}},
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 30}, {Acid: "18:1 t9", Percent: 20}, {Acid: "EPA", Percent: 50}}},
+			Nutrition: &chem.NutritionInput{}},
+		{Profile: &chem.ProfileInput{Acids: []chem.Entry{{Acid: "16:0", Percent: 40}, {Acid: "18:1", Percent: 60}}},
+			Nutrition: &chem.NutritionInput{FoodClass: "milk_products", FatGPer100gFood: ptr(3.5)}},
 	} {
 		p, err := chem.ComputeProperties(cat, in)
 		require.NoError(t, err)

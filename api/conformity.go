@@ -287,17 +287,17 @@ func fromConformity(a *identity.ConformityAnswer, inline bool) ConformityRespons
 			Recalled: s.Recalled, Plant: s.Plant, Inline: inline},
 		Verdict:         "does_not_conform",
 		Acids:           []RowVerdictBody{},
-		Distance:        round(a.Distance, decimalsSum),
+		Distance:        round(a.Distance, decimalsRow),
 		UnlistedAcids:   append([]string{}, a.Unlisted...),
-		UnlistedPercent: round(a.UnlistedPercent, decimalsSum),
+		UnlistedPercent: round(a.UnlistedPercent, decimalsRow),
 		Warnings:        toWarnings(a.Warnings),
 	}
 	if a.Conforms {
 		out.Verdict = "conforms"
 	}
 	for _, r := range a.Rows {
-		row := RowVerdictBody{Acid: r.Row.Selector, Percent: round(r.Percent, decimalsSum), ND: r.Row.NotDetected,
-			Verdict: r.Verdict.String(), Margin: round(r.Margin, decimalsSum)}
+		row := RowVerdictBody{Acid: r.Row.Selector, Percent: round(r.Percent, decimalsRow), ND: r.Row.NotDetected,
+			Verdict: r.Verdict.String(), Margin: round(r.Margin, decimalsRow)}
 		if math.IsInf(r.Margin, 0) {
 			row.Margin = 0
 		}
@@ -319,7 +319,7 @@ func fromConformity(a *identity.ConformityAnswer, inline bool) ConformityRespons
 	out.IodineValue, out.SaponificationValue, out.SlipMeltingPointC = value(a.IodineValue), value(a.SaponificationValue), value(a.SlipMeltingPoint)
 	out.ClosestReferences = make([]ClosestBody, len(a.Closest))
 	for i, m := range a.Closest {
-		out.ClosestReferences[i] = ClosestBody{ID: m.Spec.ID, Name: m.Spec.Name, Distance: round(m.Distance, decimalsSum), Conforms: m.Conforms}
+		out.ClosestReferences[i] = ClosestBody{ID: m.Spec.ID, Name: m.Spec.Name, Distance: round(m.Distance, decimalsRow), Conforms: m.Conforms}
 	}
 	return out
 }

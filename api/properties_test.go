@@ -358,3 +358,58 @@ func TestMeasuredValuesChecked(t *testing.T) {
 	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":` + palm + `,"measured":{}}`})
 	require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
 }
+
+// Nutrition-label figures through the API: the FAO (2003, Annex 5) goat
+// milk example (4.5 g fat per 100 g × 0.945 = 4.25 g fatty acids per 100 g
+// of milk), a vegetable oil whose factor comes from its composition, and
+// the refusals.
+func TestNutritionFigures(t *testing.T) {
+	app := newApp(t)
+	milk := `{"acids":[{"acid":"4:0","percent":2.5},{"acid":"6:0","percent":2.5},{"acid":"8:0","percent":2.7},
+		{"acid":"10:0","percent":9.5},{"acid":"12:0","percent":4.5},{"acid":"14:0","percent":10.5},{"acid":"16:0","percent":27},
+		{"acid":"18:0","percent":9.5},{"acid":"18:1 c9","percent":24},{"acid":"18:2 c9,c12","percent":3.2},
+		{"acid":"C18:1 t11","percent":2.0},{"acid":"18:3 c9,c12,c15","percent":1.1},{"acid":"16:1 c9","percent":1.0}]}`
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties",
+		body: `{"profile":` + milk + `,"nutrition":{"fat_g_per_100g_food":4.5,"food_class":"milk_products"}}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got := decode[api.PropertiesResponse](t, rec)
+	n := got.Nutrition
+	require.NotNil(t, n)
+	require.Equal(t, 0.945, n.ConversionFactor)
+	require.Equal(t, "food_class", n.ConversionFactorSource)
+	require.Equal(t, "milk_products", n.FoodClass.ID)
+	require.Equal(t, 94.5, n.Per100gFat.TotalFattyAcidsG)
+	require.NotNil(t, n.Per100gFood)
+	require.Equal(t, 4.25, n.Per100gFood.TotalFattyAcidsG)
+	require.Greater(t, n.Per100gFood.Trans181G, 0.0)
+	require.Zero(t, n.Per100gFood.Trans182G)
+	for _, w := range got.Warnings {
+		require.NotEqual(t, "conversion_factor_from_composition", w.Code)
+	}
+
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":{"acids":[{"acid":"16:0","percent":11},
+		{"acid":"18:0","percent":4},{"acid":"18:1 c9","percent":23},{"acid":"18:2 c9,c12","percent":54},{"acid":"18:3 c9,c12,c15","percent":8}]},"nutrition":{}}`})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got = decode[api.PropertiesResponse](t, rec)
+	require.InDelta(t, 0.956, got.Nutrition.ConversionFactor, 0.003, "FAO Table A5.1, fats and oils")
+	require.Nil(t, got.Nutrition.Per100gFood)
+	var codes []string
+	for _, w := range got.Warnings {
+		codes = append(codes, w.Code+" "+w.Pointer)
+	}
+	require.Contains(t, codes, "conversion_factor_from_composition /nutrition/food_class")
+
+	rec = do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":{"acids":[{"acid":"16:0","percent":100}]}}`})
+	require.Nil(t, decode[api.PropertiesResponse](t, rec).Nutrition, "no figures unless asked")
+
+	for body, ptr := range map[string]string{
+		`{"food_class":"cheese"}`:                       "/nutrition/food_class",
+		`{"conversion_factor":0}`:                       "/nutrition/conversion_factor",
+		`{"fat_g_per_100g_food":101}`:                   "/nutrition/fat_g_per_100g_food",
+		`{"food_class":"eggs","conversion_factor":0.8}`: "/nutrition/conversion_factor",
+	} {
+		rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":{"acids":[{"acid":"16:0","percent":100}]},"nutrition":` + body + `}`})
+		require.Contains(t, []int{http.StatusBadRequest, http.StatusUnprocessableEntity}, rec.Code, body)
+		require.Contains(t, rec.Body.String(), ptr, body)
+	}
+}

@@ -122,6 +122,13 @@ type Indices struct {
 	// leaves them out, so it understates the oxidizability of a fat that
 	// has them; above CoxScopePercent a warning says so.
 	CoxOutsidePercent float64
+	// AllylicPositionEquivalent and BisAllylicPositionEquivalent are
+	// Knothe's structure indices [JAOCS 79:847 (2002)]: Σ share × the number
+	// of allylic (or bis-allylic) CH2 positions of the chain. Unlike Cox
+	// they count every unsaturated acid — fish-oil polyenes included — and
+	// the bis-allylic count is what autoxidation rates follow (linoleate 1,
+	// linolenate 2, EPA 4, DHA 5).
+	AllylicPositionEquivalent, BisAllylicPositionEquivalent float64
 	// Atherogenic is Ulbricht & Southgate's index, Lancet 338:985 (1991):
 	// (12:0 + 4×14:0 + 16:0)/(MUFA + n-6 + n-3).
 	Atherogenic *float64
@@ -475,7 +482,7 @@ func ratio(num, den float64) *float64 {
 }
 
 func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
-	var c18m, c18d, c18t, c12, c14, c16, c18, outside float64
+	var c18m, c18d, c18t, c12, c14, c16, c18, outside, ape, bape float64
 	var outsideIDs []string
 	for _, c := range p.Components {
 		a := c.Acid
@@ -485,6 +492,9 @@ func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
 				outsideIDs = append(outsideIDs, a.ID)
 			}
 		}
+		allylic, bisAllylic := allylicPositions(a)
+		ape += c.Percent * float64(allylic)
+		bape += c.Percent * float64(bisAllylic)
 		switch {
 		case a.DoubleBondCount == 0:
 			switch a.Carbons {
@@ -511,13 +521,14 @@ func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
 	var ix Indices
 	ix.Cox = (c18m + 10.3*c18d + 21.6*c18t) / 100
 	ix.CoxOutsidePercent = outside
+	ix.AllylicPositionEquivalent, ix.BisAllylicPositionEquivalent = ape, bape
 	if outside > CoxScopePercent {
 		if len(outsideIDs) > 6 {
 			outsideIDs = append(outsideIDs[:6], "…")
 		}
 		warn = append(warn, Warning{WarnMethodScope, fmt.Sprintf(
 			"the calculated oxidizability (Cox) counts cis 18:1, 18:2 and 18:3 only; %.3g %% of the acids are polyunsaturated "+
-				"outside that definition (%s), so it understates how readily this fat oxidises", outside, strings.Join(outsideIDs, ", ")), nil})
+				"outside that definition (%s), so it understates how readily this fat oxidises; the bis-allylic position equivalent counts them", outside, strings.Join(outsideIDs, ", ")), nil})
 	}
 	ix.Atherogenic = ratio(c12+4*c14+c16, s.Monounsaturated+s.N6+s.N3)
 	den := 0.5*s.Monounsaturated + 0.5*s.N6 + 3*s.N3
@@ -539,4 +550,35 @@ func computeIndices(p *Profile, s Sums, warn []Warning) (Indices, []Warning) {
 			fmt.Sprintf("composition sums and indices are on the profile's basis (%s); the indices were published on GC area %% (FAME weight %%)", p.Basis), nil})
 	}
 	return ix, warn
+}
+
+// allylicPositions counts the CH2 groups of a chain next to one double bond
+// (allylic) and between two (bis-allylic, in a methylene-interrupted run).
+// Each run of methylene-interrupted or conjugated bonds has an allylic CH2
+// at either end, unless the end is the carboxyl carbon or the terminal
+// methyl. An acid whose bond positions are not resolved is taken as
+// methylene-interrupted.
+func allylicPositions(a *FattyAcid) (allylic, bisAllylic int) {
+	n := a.DoubleBondCount
+	if n == 0 {
+		return 0, 0
+	}
+	if len(a.Bonds) != n {
+		return 2, n - 1
+	}
+	if a.Bonds[0].Position-1 >= 2 {
+		allylic++
+	}
+	if a.Bonds[n-1].Position+2 <= a.Carbons-1 {
+		allylic++
+	}
+	for i := 1; i < n; i++ {
+		switch gap := a.Bonds[i].Position - a.Bonds[i-1].Position; {
+		case gap == 3:
+			bisAllylic++
+		case gap > 3:
+			allylic += 2
+		}
+	}
+	return allylic, bisAllylic
 }

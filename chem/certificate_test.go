@@ -393,3 +393,33 @@ func TestAOCSOutsideItsScope(t *testing.T) {
 	}
 	require.True(t, cox, "%v", got.Warnings)
 }
+
+// Knothe's allylic and bis-allylic position equivalents [JAOCS 79:847
+// (2002)], counted by hand from the structures [first principles]: oleic
+// acid has two allylic CH2 (C8, C11) and no bis-allylic one; linoleic two
+// and one (C11); linolenic two and two; EPA (Δ5,8,11,14,17) two (C4, C19)
+// and four; DHA (Δ4,…,19) two (C3, C21) and five; rumenic acid (c9,t11,
+// conjugated) two and none; a Δ5,Δ9 non-methylene-interrupted diene
+// (taxoleic-type) four and none.
+func TestAllylicPositionEquivalents(t *testing.T) {
+	cat := NewCatalogue()
+	for label, want := range map[string][2]float64{
+		"18:1 c9": {200, 0}, "18:2 c9,c12": {200, 100}, "18:3 c9,c12,c15": {200, 200},
+		"20:5 n-3": {200, 400}, "22:6 n-3": {200, 500}, "18:2 c9,t11": {200, 0}, "16:0": {0, 0},
+	} {
+		got, err := ComputeProperties(cat, PropertiesInput{Profile: &ProfileInput{Acids: []Entry{{label, 100}}}})
+		require.NoError(t, err, label)
+		require.InDelta(t, want[0], got.Indices.AllylicPositionEquivalent, 1e-9, label)
+		require.InDelta(t, want[1], got.Indices.BisAllylicPositionEquivalent, 1e-9, label)
+	}
+	nmi := &FattyAcid{Carbons: 18, DoubleBondCount: 2, Bonds: []DoubleBond{{Position: 5}, {Position: 9}}}
+	a, b := allylicPositions(nmi)
+	require.Equal(t, [2]int{4, 0}, [2]int{a, b}, "Δ5,Δ9: C4, C7, C8, C11")
+	// A mixture adds by share: 54 % linoleic and 8 % linolenic give a
+	// bis-allylic equivalent of 54 + 2 × 8 = 70.
+	got, err := ComputeProperties(cat, PropertiesInput{Profile: &ProfileInput{Acids: []Entry{{"16:0", 11}, {"18:0", 4},
+		{"18:1 c9", 23}, {"18:2 c9,c12", 54}, {"18:3 c9,c12,c15", 8}}}})
+	require.NoError(t, err)
+	require.InDelta(t, 70, got.Indices.BisAllylicPositionEquivalent, 1e-9)
+	require.InDelta(t, 2*(23+54+8), got.Indices.AllylicPositionEquivalent, 1e-9)
+}
