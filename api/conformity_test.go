@@ -242,3 +242,25 @@ func TestConformityBadRequests(t *testing.T) {
 		})
 	}
 }
+
+// A measured slip melting point is checked against the palm oil range
+// (CXS 210 Appendix: 33-39 °C, recalled and so warned about); without one
+// there is no slip-point verdict, since the composition alone does not
+// fix it.
+func TestConformitySlipMeltingPoint(t *testing.T) {
+	got := conform(t, `{"specification":"palm","profile":{"acids":`+palmAcids+`}}`)
+	require.Nil(t, got.SlipMeltingPointC)
+	got = conform(t, `{"specification":"palm","measured":{"slip_melting_point_c":36.4},"profile":{"acids":`+palmAcids+`}}`)
+	require.NotNil(t, got.SlipMeltingPointC)
+	require.Equal(t, "within", got.SlipMeltingPointC.Verdict)
+	require.Equal(t, "conforms", got.Verdict)
+	recalled := false
+	for _, w := range got.Warnings {
+		recalled = recalled || w.Code == "ranges_recalled"
+	}
+	require.True(t, recalled)
+	got = conform(t, `{"specification":"palm","measured":{"slip_melting_point_c":41},"profile":{"acids":`+palmAcids+`}}`)
+	require.Equal(t, "above", got.SlipMeltingPointC.Verdict)
+	require.InDelta(t, -2.0, got.SlipMeltingPointC.Margin, 1e-9)
+	require.Equal(t, "does_not_conform", got.Verdict)
+}

@@ -51,6 +51,8 @@ var referenceInputs = []SpecificationInput{
 		Edition:  "as reproduced (amendment not stated)",
 		Table:    "Table 1 (fatty acids), Table 2 (iodine and saponification values)",
 		Source:   "CXS 210-1999 Table 1 (fatty-acid composition, GLC) and Table 2 (chemical characteristics) as reproduced, oil by oil, at https://www.zyotwdhon.com/en/codex-specifications/spec-palm (read December 2026; the page does not state the amendment it follows); the same fatty-acid ranges in Nutrients 11:2008 (2019), Table 4",
+		Recalled: true,
+		Notes:    "The slip melting point 33-39 °C (CXS 210 Appendix) is recalled, not read; trade specifications for refined palm oil quote the same range by AOCS Cc 3-25.",
 		Acids: []RowInput{
 			nd("C6:0"),
 			nd("C8:0"),
@@ -76,6 +78,7 @@ var referenceInputs = []SpecificationInput{
 		},
 		IodineValue:         between(50, 55),
 		SaponificationValue: between(190, 209),
+		SlipMeltingPointC:   between(33, 39),
 	},
 	{
 		ID:       "palm_high_oleic",
@@ -349,7 +352,7 @@ var referenceInputs = []SpecificationInput{
 		Table:    "Table 1 (fatty acids), Table 2 (iodine and saponification values)",
 		Source:   "fatty acids: CXS 210 (Codex Alimentarius 2015) as reproduced in Nutrients 11:2008 (2019), Table 4, https://pmc.ncbi.nlm.nih.gov/articles/PMC6770503/table/nutrients-11-02008-t004; iodine value at least 56 as in the trade specifications for palm olein (PORAM, as quoted)",
 		Recalled: true,
-		Notes:    "The saponification value range 194-202 is recalled, not read.",
+		Notes:    "The saponification value range 194-202 and the slip melting point (at most 24 °C, CXS 210 Appendix) are recalled, not read; trade specifications for refined palm olein quote the same 24 °C maximum by AOCS Cc 3-25.",
 		Acids: []RowInput{
 			nd("C6:0"),
 			nd("C8:0"),
@@ -375,6 +378,7 @@ var referenceInputs = []SpecificationInput{
 		},
 		IodineValue:         atLeast(56),
 		SaponificationValue: between(194, 202),
+		SlipMeltingPointC:   atMost(24),
 	},
 	{
 		ID:       "palm_stearin",
@@ -384,7 +388,7 @@ var referenceInputs = []SpecificationInput{
 		Table:    "Table 1 (fatty acids), Table 2 (iodine and saponification values)",
 		Source:   "fatty acids: CXS 210 (Codex Alimentarius 2015) as reproduced in Nutrients 11:2008 (2019), Table 4, https://pmc.ncbi.nlm.nih.gov/articles/PMC6770503/table/nutrients-11-02008-t004",
 		Recalled: true,
-		Notes:    "The iodine value (at most 48) and saponification value (193-205) ranges are recalled, not read.",
+		Notes:    "The iodine value (at most 48), saponification value (193-205) and slip melting point (at least 44 °C, CXS 210 Appendix) ranges are recalled, not read.",
 		Acids: []RowInput{
 			nd("C6:0"),
 			nd("C8:0"),
@@ -410,6 +414,7 @@ var referenceInputs = []SpecificationInput{
 		},
 		IodineValue:         atMost(48),
 		SaponificationValue: between(193, 205),
+		SlipMeltingPointC:   atLeast(44),
 	},
 	{
 		ID:       "palm_superolein",
@@ -419,7 +424,7 @@ var referenceInputs = []SpecificationInput{
 		Table:    "Table 1 (fatty acids), Table 2 (iodine and saponification values)",
 		Source:   "fatty acids: CXS 210 (Codex Alimentarius 2015) as reproduced in Nutrients 11:2008 (2019), Table 4, https://pmc.ncbi.nlm.nih.gov/articles/PMC6770503/table/nutrients-11-02008-t004; iodine value of 60 or higher from the standard's definition of palm superolein (section 2.1)",
 		Recalled: true,
-		Notes:    "The saponification value range 180-205 is recalled, not read.",
+		Notes:    "The saponification value range 180-205 and the slip melting point (at most 19.5 °C, CXS 210 Appendix) are recalled, not read.",
 		Acids: []RowInput{
 			nd("C6:0"),
 			nd("C8:0"),
@@ -445,6 +450,7 @@ var referenceInputs = []SpecificationInput{
 		},
 		IodineValue:         atLeast(60),
 		SaponificationValue: between(180, 205),
+		SlipMeltingPointC:   atMost(19.5),
 	},
 	{
 		ID:       "palm_kernel",
@@ -454,7 +460,7 @@ var referenceInputs = []SpecificationInput{
 		Table:    "Table 1 (fatty acids), Table 2 (iodine and saponification values)",
 		Source:   "fatty acids: CXS 210 (Codex Alimentarius 2015) as reproduced in Nutrients 11:2008 (2019), Table 4, https://pmc.ncbi.nlm.nih.gov/articles/PMC6770503/table/nutrients-11-02008-t004",
 		Recalled: true,
-		Notes:    "The iodine value (14.1-21.0) and saponification value (230-254) ranges are recalled, not read; trade specifications quote an iodine value of at most 19.",
+		Notes:    "The iodine value (14.1-21.0) and saponification value (230-254) ranges are recalled, not read; trade specifications quote an iodine value of at most 19. The slip melting point 25-30 °C (CXS 210 Appendix) is recalled too.",
 		Acids: []RowInput{
 			upTo("C6:0", 0.8),
 			span("C8:0", 2.4, 6.2),
@@ -480,6 +486,7 @@ var referenceInputs = []SpecificationInput{
 		},
 		IodineValue:         between(14.1, 21),
 		SaponificationValue: between(230, 254),
+		SlipMeltingPointC:   between(25, 30),
 	},
 	{
 		ID:       "sunflower",
