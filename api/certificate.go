@@ -1,9 +1,7 @@
 package api
 
 import (
-	"net/http"
-
-	"github.com/labstack/echo/v4"
+	"context"
 
 	"lipidsvc/chem"
 )
@@ -105,6 +103,7 @@ type PropertiesResponse struct {
 	Acids                   []AcidResultBody    `json:"acids"`
 	MeasuredComparison      *MeasuredComparison `json:"measured_comparison,omitempty"`
 	Nutrition               *NutritionResult    `json:"nutrition,omitempty"`
+	Provenance              *Provenance         `json:"provenance,omitempty"`
 	Warnings                []WarningBody       `json:"warnings"`
 }
 
@@ -171,19 +170,19 @@ func (r *PropertiesRequest) input() chem.PropertiesInput {
 	return in
 }
 
-func handleProperties(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runProperties(cat *chem.Catalogue, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var req PropertiesRequest
-		if err := decode(c, &req); err != nil {
-			return err
+		if err := decodeBytes(b, &req); err != nil {
+			return nil, err
 		}
 		props, err := chem.ComputeProperties(cat, req.input())
 		if err != nil {
-			return err
+			return nil, err
 		}
 		rec.Calculation("properties")
 		out := fromProperties(props)
-		return respond(c, http.StatusOK, &out)
+		return &out, nil
 	}
 }
 

@@ -95,10 +95,42 @@ func (r *PropertiesResponse) AppendJSON(b []byte) ([]byte, error) {
 		w.key("nutrition")
 		w.nutrition(n)
 	}
+	if p := r.Provenance; p != nil {
+		w.key("provenance")
+		w.provenance(p)
+	}
 	w.key("warnings")
 	w.warnings(r.Warnings)
 	w.close('}')
 	return w.b, w.err
+}
+
+// provenance writes a provenance record; its parameters are compact JSON
+// already.
+func (w *jsonWriter) provenance(p *Provenance) {
+	w.open('{')
+	w.str("service", p.Service)
+	w.str("version", p.Version)
+	w.str("request_id", p.RequestID)
+	w.str("operation", p.Operation)
+	w.key("methods")
+	if p.Methods == nil {
+		w.raw("null")
+	} else {
+		w.open('[')
+		for _, m := range p.Methods {
+			w.elem()
+			w.b = appendJSONString(w.b, m)
+		}
+		w.close(']')
+	}
+	w.key("parameters")
+	if p.Parameters == nil {
+		w.raw("null")
+	} else {
+		w.b = append(w.b, p.Parameters...)
+	}
+	w.close('}')
 }
 
 // nutrition writes the label figures.

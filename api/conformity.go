@@ -2,6 +2,7 @@ package api
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"math"
 	"net/http"
@@ -159,6 +160,7 @@ type ConformityResponse struct {
 	UnlistedAcids       []string          `json:"unlisted_acids"`
 	UnlistedPercent     float64           `json:"unlisted_percent"`
 	ClosestReferences   []ClosestBody     `json:"closest_references"`
+	Provenance          *Provenance       `json:"provenance,omitempty"`
 	Warnings            []WarningBody     `json:"warnings"`
 }
 
@@ -264,19 +266,20 @@ func handleReferenceOil(lib *identity.Library) echo.HandlerFunc {
 	}
 }
 
-func handleConformity(cat *chem.Catalogue, lib *identity.Library, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runConformity(cat *chem.Catalogue, lib *identity.Library, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var req ConformityRequest
-		if err := decode(c, &req); err != nil {
-			return err
+		if err := decodeBytes(b, &req); err != nil {
+			return nil, err
 		}
 		in := req.input()
 		ans, err := identity.Conform(cat, lib, in)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		rec.Calculation("conformity")
-		return respond(c, http.StatusOK, fromConformity(ans, in.Specification != nil))
+		out := fromConformity(ans, in.Specification != nil)
+		return &out, nil
 	}
 }
 

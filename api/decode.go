@@ -1,6 +1,7 @@
 package api
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -11,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"github.com/labstack/echo/v4"
 	segjson "github.com/segmentio/encoding/json"
@@ -66,6 +68,11 @@ func decode(c echo.Context, v any) error {
 	if err != nil {
 		return err
 	}
+	return decodeBytes(body, v)
+}
+
+// decodeBytes is decode's strict decoding of bytes already read.
+func decodeBytes(body []byte, v any) error {
 	rest, err := segjson.Parse(body, v, segjson.DisallowUnknownFields)
 	if err != nil {
 		return jsonError(err)
@@ -160,4 +167,36 @@ func (n *Integer) UnmarshalJSON(b []byte) error {
 	}
 	*n = Integer(f)
 	return nil
+}
+
+// Byte-order marks: UTF-8's is dropped (spreadsheet and LIMS exports
+// often start with one; RFC 8259 §8.1 lets a parser ignore it); UTF-16's
+// means the body is not UTF-8 at all.
+var (
+	bomUTF8    = []byte{0xEF, 0xBB, 0xBF}
+	bomUTF16BE = []byte{0xFE, 0xFF}
+	bomUTF16LE = []byte{0xFF, 0xFE}
+)
+
+// CheckEncoding drops a UTF-8 byte-order mark and refuses a body that is
+// not UTF-8, saying where.
+func CheckEncoding(body []byte) ([]byte, error) {
+	if bytes.HasPrefix(body, bomUTF16BE) || bytes.HasPrefix(body, bomUTF16LE) {
+		return nil, NewError(KindUnsupportedMedia,
+			"the request body is UTF-16 (it starts with a UTF-16 byte-order mark); send it as UTF-8")
+	}
+	body = bytes.TrimPrefix(body, bomUTF8)
+	if !utf8.Valid(body) {
+		at := 0
+		for at < len(body) {
+			r, n := utf8.DecodeRune(body[at:])
+			if r == utf8.RuneError && n <= 1 {
+				break
+			}
+			at += n
+		}
+		return nil, NewError(KindMalformed, "the request body is not valid UTF-8",
+			FieldError{Pointer: "", Reason: fmt.Sprintf("invalid UTF-8 at byte %d; is the export in another encoding (for example Latin-1)? send it as UTF-8", at)})
+	}
+	return body, nil
 }

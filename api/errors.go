@@ -115,6 +115,9 @@ type Problem struct {
 	Instance  string       `json:"instance"`
 	RequestID string       `json:"request_id"`
 	Errors    []FieldError `json:"errors,omitempty"`
+	// Evaluation names the batch evaluation that failed, in a batch
+	// sample's problem.
+	Evaluation string `json:"evaluation,omitempty"`
 }
 
 // ContextKeyRequestID is where the request-id middleware leaves the id in

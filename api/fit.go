@@ -1,10 +1,8 @@
 package api
 
 import (
+	"context"
 	"math"
-	"net/http"
-
-	"github.com/labstack/echo/v4"
 
 	"lipidsvc/chem"
 	"lipidsvc/chem/hardening"
@@ -58,6 +56,7 @@ type FitResponse struct {
 	RSquared            *float64               `json:"r_squared"`
 	Iterations          int                    `json:"iterations"`
 	Evaluations         int                    `json:"evaluations"`
+	Provenance          *Provenance            `json:"provenance,omitempty"`
 	Warnings            []WarningBody          `json:"warnings"`
 }
 
@@ -86,19 +85,20 @@ func (b *FitRequest) input() hardening.FitInput {
 	return in
 }
 
-func handleFit(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runFit(cat *chem.Catalogue, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var body FitRequest
-		if err := decode(c, &body); err != nil {
-			return err
+		if err := decodeBytes(b, &body); err != nil {
+			return nil, err
 		}
-		res, err := hardening.Fit(c.Request().Context(), cat, body.input())
+		res, err := hardening.Fit(ctx, cat, body.input())
 		if err != nil {
-			return err
+			return nil, err
 		}
 		rec.Calculation("hardening_fit")
 		rec.SolverIterations("hardening_fit", res.Iterations)
-		return respond(c, http.StatusOK, fromFit(res))
+		out := fromFit(res)
+		return &out, nil
 	}
 }
 

@@ -1,6 +1,7 @@
 package api
 
 import (
+	"context"
 	"net/http"
 
 	"github.com/labstack/echo/v4"
@@ -108,6 +109,7 @@ type ForecastResponse struct {
 	Flags              ForecastFlags      `json:"flags"`
 	Catalyst           CatalystUsed       `json:"catalyst"`
 	Cautions           []string           `json:"cautions"`
+	Provenance         *Provenance        `json:"provenance,omitempty"`
 	Warnings           []WarningBody      `json:"warnings"`
 }
 
@@ -158,21 +160,22 @@ func (b *ForecastRequest) input() hardening.ForecastInput {
 	return in
 }
 
-func handleForecast(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runForecast(cat *chem.Catalogue, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var body ForecastRequest
-		if err := decode(c, &body); err != nil {
-			return err
+		if err := decodeBytes(b, &body); err != nil {
+			return nil, err
 		}
-		res, err := hardening.Forecast(c.Request().Context(), cat, body.input())
+		res, err := hardening.Forecast(ctx, cat, body.input())
 		if err != nil {
-			return err
+			return nil, err
 		}
 		if res.SlipTarget != nil {
 			rec.SolverIterations("slip_melting_point_search", res.SlipTarget.Evaluations)
 		}
 		rec.Calculation("hardening_forecast")
-		return respond(c, http.StatusOK, fromForecast(res))
+		out := fromForecast(res)
+		return &out, nil
 	}
 }
 

@@ -57,7 +57,8 @@ func TestGoldenResponses(t *testing.T) {
 			if body != "" && body[0] != '{' {
 				body = readFile(t, "testdata", body)
 			}
-			rec := do(t, app, call{method: c.method, path: c.path, body: body})
+			rec := do(t, app, call{method: c.method, path: c.path, body: body,
+				header: map[string]string{"X-Request-ID": "golden-" + c.name}})
 			require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
 			var got any
 			require.NoError(t, json.Unmarshal(rec.Body.Bytes(), &got))

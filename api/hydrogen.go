@@ -1,9 +1,7 @@
 package api
 
 import (
-	"net/http"
-
-	"github.com/labstack/echo/v4"
+	"context"
 
 	"lipidsvc/chem"
 	"lipidsvc/chem/hardening"
@@ -127,6 +125,7 @@ type HydrogenDemandResponse struct {
 	Heat                     HeatBody           `json:"heat"`
 	Parameters               HydrogenParameters `json:"parameters"`
 	Cautions                 []string           `json:"cautions"`
+	Provenance               *Provenance        `json:"provenance,omitempty"`
 	Warnings                 []WarningBody      `json:"warnings"`
 }
 
@@ -152,18 +151,19 @@ func (b *HydrogenDemandRequest) input() hardening.HydrogenDemandInput {
 	return in
 }
 
-func handleHydrogenDemand(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runHydrogenDemand(cat *chem.Catalogue, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var body HydrogenDemandRequest
-		if err := decode(c, &body); err != nil {
-			return err
+		if err := decodeBytes(b, &body); err != nil {
+			return nil, err
 		}
 		res, err := hardening.HydrogenDemand(cat, body.input())
 		if err != nil {
-			return err
+			return nil, err
 		}
 		rec.Calculation("hydrogen_demand")
-		return respond(c, http.StatusOK, fromHydrogenResult(res))
+		out := fromHydrogenResult(res)
+		return &out, nil
 	}
 }
 

@@ -1,9 +1,7 @@
 package api
 
 import (
-	"net/http"
-
-	"github.com/labstack/echo/v4"
+	"context"
 
 	"lipidsvc/chem"
 	"lipidsvc/chem/melting"
@@ -160,6 +158,7 @@ type MeltingResponse struct {
 	Uncertainty          UncertaintyBody   `json:"uncertainty"`
 	Assumptions          []string          `json:"assumptions"`
 	Comparison           *MeltingError     `json:"comparison,omitempty"`
+	Provenance           *Provenance       `json:"provenance,omitempty"`
 	Warnings             []WarningBody     `json:"warnings"`
 }
 
@@ -170,6 +169,7 @@ type CalibrateResponse struct {
 	After       MeltingError       `json:"after"`
 	LeaveOneOut *MeltingError      `json:"leave_one_out,omitempty"`
 	Fats        []FatFitBody       `json:"fats,omitempty"`
+	Provenance  *Provenance        `json:"provenance,omitempty"`
 	Warnings    []WarningBody      `json:"warnings"`
 }
 
@@ -270,30 +270,31 @@ func fromMeltingError(e melting.CalibrationError) MeltingError {
 	return out
 }
 
-func handleMelting(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runMelting(cat *chem.Catalogue, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var body MeltingRequest
-		if err := decode(c, &body); err != nil {
-			return err
+		if err := decodeBytes(b, &body); err != nil {
+			return nil, err
 		}
 		res, err := melting.Melt(cat, body.input())
 		if err != nil {
-			return err
+			return nil, err
 		}
 		rec.Calculation("melting")
-		return respond(c, http.StatusOK, fromMelting(res))
+		out := fromMelting(res)
+		return &out, nil
 	}
 }
 
-func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
-	return func(c echo.Context) error {
+func runCalibrate(cat *chem.Catalogue, rec Recorder) operation {
+	return func(ctx context.Context, b []byte) (traced, error) {
 		var body CalibrateRequest
-		if err := decode(c, &body); err != nil {
-			return err
+		if err := decodeBytes(b, &body); err != nil {
+			return nil, err
 		}
-		rep, err := melting.Calibrate(c.Request().Context(), cat, body.input())
+		rep, err := melting.Calibrate(ctx, cat, body.input())
 		if err != nil {
-			return err
+			return nil, err
 		}
 		rec.Calculation("melting_calibration")
 		out := CalibrateResponse{
@@ -319,7 +320,7 @@ func handleCalibrate(cat *chem.Catalogue, rec Recorder) echo.HandlerFunc {
 				}
 			}
 		}
-		return respond(c, http.StatusOK, out)
+		return &out, nil
 	}
 }
 

@@ -21,6 +21,14 @@ type Deps struct {
 	Ready    func() bool
 	Recorder Recorder
 	Logger   *slog.Logger
+	// Version is the service version provenance records name.
+	Version string
+	// Validate checks parts of streamed bodies against the contract; nil
+	// disables the streamed routes' part validation (tests of the handlers
+	// alone).
+	Validate Validator
+	// Batch bounds POST /v1/batch.
+	Batch BatchLimits
 }
 
 // Routes registers every route of the API. It is the one place that shows
@@ -37,14 +45,15 @@ func Routes(e *echo.Echo, d Deps) {
 	e.GET("/openapi.yaml", handleSpec(d.Spec))
 
 	e.GET("/v1/fatty-acids", handleFattyAcids(d.Catalogue))
-	e.POST("/v1/properties", handleProperties(d.Catalogue, d.Recorder))
-	e.POST("/v1/hydrogen-demand", handleHydrogenDemand(d.Catalogue, d.Recorder))
-	e.POST("/v1/hardening/forecast", handleForecast(d.Catalogue, d.Recorder))
+	e.POST("/v1/properties", d.handle("POST /v1/properties", runProperties(d.Catalogue, d.Recorder)))
+	e.POST("/v1/hydrogen-demand", d.handle("POST /v1/hydrogen-demand", runHydrogenDemand(d.Catalogue, d.Recorder)))
+	e.POST("/v1/hardening/forecast", d.handle("POST /v1/hardening/forecast", runForecast(d.Catalogue, d.Recorder)))
 	e.GET("/v1/hardening/presets", handlePresets())
-	e.POST("/v1/hardening/fit", handleFit(d.Catalogue, d.Recorder))
-	e.POST("/v1/melting", handleMelting(d.Catalogue, d.Recorder))
-	e.POST("/v1/melting/calibrate", handleCalibrate(d.Catalogue, d.Recorder))
+	e.POST("/v1/hardening/fit", d.handle("POST /v1/hardening/fit", runFit(d.Catalogue, d.Recorder)))
+	e.POST("/v1/melting", d.handle("POST /v1/melting", runMelting(d.Catalogue, d.Recorder)))
+	e.POST("/v1/melting/calibrate", d.handle("POST /v1/melting/calibrate", runCalibrate(d.Catalogue, d.Recorder)))
 	e.GET("/v1/reference-oils", handleReferenceOils(d.Library))
 	e.GET("/v1/reference-oils/:id", handleReferenceOil(d.Library))
-	e.POST("/v1/conformity", handleConformity(d.Catalogue, d.Library, d.Recorder))
+	e.POST("/v1/conformity", d.handle("POST /v1/conformity", runConformity(d.Catalogue, d.Library, d.Recorder)))
+	e.POST("/v1/batch", d.handleBatch())
 }

@@ -231,7 +231,13 @@ func (q *query) parseToken(tok string) error {
 		}
 		if m := bondPostRe.FindStringSubmatch(leadingBond(tok, false)); m != nil {
 			pos, _ := strconv.Atoi(m[1])
-			q.bonds = append(q.bonds, DoubleBond{Position: pos, Geometry: geometryWord(m[2])})
+			g := geometryWord(m[2])
+			if g == GeometryUnknown && len(q.bonds) > 0 {
+				// "cis-9,12" is cis-9,cis-12: a bare position in a list
+				// takes the geometry written before it.
+				g = q.bonds[len(q.bonds)-1].Geometry
+			}
+			q.bonds = append(q.bonds, DoubleBond{Position: pos, Geometry: g})
 			tok = tok[len(m[0]):]
 			continue
 		}

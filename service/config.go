@@ -46,6 +46,19 @@ type Config struct {
 	// read or parsed stops start-up with the line and field at fault.
 	SpecFile            string
 	PlantSpecifications []*identity.Specification
+	// BatchMaxSamples caps the samples of one JSON or CSV batch
+	// (LIPIDSVC_BATCH_MAX_SAMPLES); an NDJSON stream has no cap.
+	BatchMaxSamples int
+	// BatchBodyLimitBytes caps a JSON or CSV batch body
+	// (LIPIDSVC_BATCH_BODY_LIMIT_BYTES); an NDJSON line is capped by
+	// BodyLimitBytes.
+	BatchBodyLimitBytes int64
+	// BatchTimeout bounds a whole batch or stream (LIPIDSVC_BATCH_TIMEOUT);
+	// each sample's evaluations have RequestTimeout.
+	BatchTimeout time.Duration
+	// BatchWorkers is how many samples are evaluated at once
+	// (LIPIDSVC_BATCH_WORKERS); 0 means one per core.
+	BatchWorkers int
 }
 
 // DefaultConfig is the configuration with nothing set.
@@ -62,6 +75,10 @@ func DefaultConfig() Config {
 		IdleTimeout:       120 * time.Second,
 		DrainDelay:        5 * time.Second,
 		ShutdownTimeout:   15 * time.Second,
+
+		BatchMaxSamples:     10000,
+		BatchBodyLimitBytes: 64 << 20,
+		BatchTimeout:        30 * time.Minute,
 	}
 }
 
@@ -110,6 +127,27 @@ func LoadConfig(args []string, getenv func(string) string) (Config, error) {
 	dur("LIPIDSVC_IDLE_TIMEOUT", &cfg.IdleTimeout)
 	dur("LIPIDSVC_DRAIN_DELAY", &cfg.DrainDelay)
 	dur("LIPIDSVC_SHUTDOWN_TIMEOUT", &cfg.ShutdownTimeout)
+	dur("LIPIDSVC_BATCH_TIMEOUT", &cfg.BatchTimeout)
+	intIn := func(name string, dst *int, lo, hi int) {
+		if v, ok := lookup(getenv, name); ok {
+			n, err := strconv.Atoi(v)
+			if err != nil || n < lo || n > hi {
+				errs = append(errs, fmt.Errorf("%s: %q is not a whole number from %d to %d", name, v, lo, hi))
+				return
+			}
+			*dst = n
+		}
+	}
+	intIn("LIPIDSVC_BATCH_MAX_SAMPLES", &cfg.BatchMaxSamples, 1, 1000000)
+	intIn("LIPIDSVC_BATCH_WORKERS", &cfg.BatchWorkers, 0, 256)
+	if v, ok := lookup(getenv, "LIPIDSVC_BATCH_BODY_LIMIT_BYTES"); ok {
+		n, err := strconv.ParseInt(v, 10, 64)
+		if err != nil || n < 1024 || n > 1<<30 {
+			errs = append(errs, fmt.Errorf("LIPIDSVC_BATCH_BODY_LIMIT_BYTES: %q is not a whole number from 1024 to 1073741824", v))
+		} else {
+			cfg.BatchBodyLimitBytes = n
+		}
+	}
 	str("LIPIDSVC_SPEC_FILE", &cfg.SpecFile)
 	if cfg.SpecFile != "" {
 		specs, err := readSpecFile(cfg.SpecFile)
@@ -165,6 +203,10 @@ func (c Config) LogValue() slog.Value {
 		slog.String("idle_timeout", c.IdleTimeout.String()),
 		slog.String("drain_delay", c.DrainDelay.String()),
 		slog.String("shutdown_timeout", c.ShutdownTimeout.String()),
+		slog.Int("batch_max_samples", c.BatchMaxSamples),
+		slog.Int64("batch_body_limit_bytes", c.BatchBodyLimitBytes),
+		slog.String("batch_timeout", c.BatchTimeout.String()),
+		slog.Int("batch_workers", c.BatchWorkers),
 	)
 }
 

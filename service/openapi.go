@@ -9,7 +9,6 @@ import (
 	"mime"
 	"net/http"
 	"strings"
-	"unicode/utf8"
 
 	"github.com/getkin/kin-openapi/openapi3"
 	"github.com/getkin/kin-openapi/routers"
@@ -89,7 +88,7 @@ func readBodies(doc *openapi3.T) echo.MiddlewareFunc {
 			if err != nil {
 				return err
 			}
-			if body, err = checkEncoding(body); err != nil {
+			if body, err = api.CheckEncoding(body); err != nil {
 				return err
 			}
 			if len(bytes.TrimSpace(body)) == 0 {
@@ -168,38 +167,6 @@ func checkMediaType(req *http.Request) error {
 			fmt.Sprintf("the request body must not be encoded (Content-Encoding %q)", enc))
 	}
 	return nil
-}
-
-// Byte-order marks: UTF-8's is dropped (spreadsheet and LIMS exports
-// often start with one; RFC 8259 §8.1 lets a parser ignore it); UTF-16's
-// means the body is not UTF-8 at all.
-var (
-	bomUTF8    = []byte{0xEF, 0xBB, 0xBF}
-	bomUTF16BE = []byte{0xFE, 0xFF}
-	bomUTF16LE = []byte{0xFF, 0xFE}
-)
-
-// checkEncoding drops a UTF-8 byte-order mark and refuses a body that is
-// not UTF-8, saying where.
-func checkEncoding(body []byte) ([]byte, error) {
-	if bytes.HasPrefix(body, bomUTF16BE) || bytes.HasPrefix(body, bomUTF16LE) {
-		return nil, api.NewError(api.KindUnsupportedMedia,
-			"the request body is UTF-16 (it starts with a UTF-16 byte-order mark); send it as UTF-8")
-	}
-	body = bytes.TrimPrefix(body, bomUTF8)
-	if !utf8.Valid(body) {
-		at := 0
-		for at < len(body) {
-			r, n := utf8.DecodeRune(body[at:])
-			if r == utf8.RuneError && n <= 1 {
-				break
-			}
-			at += n
-		}
-		return nil, api.NewError(api.KindMalformed, "the request body is not valid UTF-8",
-			api.FieldError{Pointer: "", Reason: fmt.Sprintf("invalid UTF-8 at byte %d; is the export in another encoding (for example Latin-1)? send it as UTF-8", at)})
-	}
-	return body, nil
 }
 
 // contractError turns the violations of the contract into one malformed-

@@ -40,13 +40,19 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 	e.Logger.SetOutput(io.Discard)
 	e.HTTPErrorHandler = api.ErrorHandler(logger, a.Metrics)
 
+	streamed := streamedRoutes(doc)
+	validate, err := newValidator(doc)
+	if err != nil {
+		// LoadSpec compiled the same document without error.
+		panic("service: the contract's schemas do not compile: " + err.Error())
+	}
 	e.Use(
 		requestID(),
 		observe(logger, a.Metrics),
 		recoverPanics(logger),
-		requestTimeout(cfg.RequestTimeout),
-		bodyLimit(cfg.BodyLimitBytes),
-		readBodies(doc),
+		unlessStreamed(streamed, requestTimeout(cfg.RequestTimeout)),
+		unlessStreamed(streamed, bodyLimit(cfg.BodyLimitBytes)),
+		unlessStreamed(streamed, readBodies(doc)),
 	)
 	api.Routes(e, api.Deps{
 		Catalogue: chem.NewCatalogue(),
@@ -55,6 +61,18 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		Ready:     a.ready.Load,
 		Recorder:  a.Metrics,
 		Logger:    logger,
+		Version:   version(),
+		Validate:  validate,
+		Batch: api.BatchLimits{
+			MaxSamples:     cfg.BatchMaxSamples,
+			BodyLimitBytes: cfg.BatchBodyLimitBytes,
+			LineLimitBytes: cfg.BodyLimitBytes,
+			Timeout:        cfg.BatchTimeout,
+			SampleTimeout:  cfg.RequestTimeout,
+			ReadTimeout:    cfg.ReadTimeout,
+			WriteTimeout:   cfg.WriteTimeout,
+			Workers:        cfg.BatchWorkers,
+		},
 	})
 	a.SetReady(true)
 	return a

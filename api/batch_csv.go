@@ -1,0 +1,556 @@
+package api
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/labstack/echo/v4"
+
+	"lipidsvc/chem"
+	"lipidsvc/chem/melting"
+)
+
+// A CSV batch is one row per sample as GC software exports it: a header
+// row, a sample-id column, one column per acid headed by any label the
+// label reader accepts, and optionally the measured iodine value,
+// saponification value and slip melting point. The separator is read from
+// the header (comma, semicolon or tab); with semicolons or tabs a decimal
+// comma is read as a decimal point, as European instruments write it. An
+// empty cell, "-", "nd", "n.d." or "ND" is an acid not found. The profile
+// settings come as query parameters (basis, sum_tolerance_percent,
+// max_unidentified_percent), with evaluations and options as for NDJSON.
+// Header problems fail the batch, one error per column (pointer
+// /header/<column index>); a row's problems are that row's result
+// (pointer /rows/<row index>/columns/<column index>, both from 0; the
+// reason names the line and the column's header).
+
+// csvInput describes the columns of a CSV batch.
+type csvInput struct {
+	header  []string
+	idCol   int
+	acids   []csvColumn // acid columns in order
+	measure []csvColumn // measured-value columns
+}
+
+type csvColumn struct {
+	col int
+	key string // the acid label, or the measured value's key
+}
+
+// csvSampleHeaders are the headers read as the sample id.
+var csvSampleHeaders = map[string]bool{
+	"sample_id": true, "sample id": true, "sampleid": true, "sample": true, "sample name": true, "sample_name": true,
+	"id": true, "lot": true, "lot number": true, "lot_number": true, "lot no": true, "batch": true, "name": true,
+}
+
+// csvMeasuredHeaders are the headers read as measured values.
+var csvMeasuredHeaders = map[string]string{
+	"iodine_value": "iodine_value", "iodine value": "iodine_value", "iv": "iodine_value", "measured iodine value": "iodine_value",
+	"saponification_value": "saponification_value", "saponification value": "saponification_value", "sv": "saponification_value",
+	"slip_melting_point_c": "slip_melting_point_c", "slip melting point": "slip_melting_point_c", "slip melting point c": "slip_melting_point_c",
+	"smp": "slip_melting_point_c",
+}
+
+// csvNotFound are cells that mean the acid was not found.
+var csvNotFound = map[string]bool{"": true, "-": true, "nd": true, "n.d.": true, "n.d": true, "not detected": true}
+
+// readCSVBatch reads a CSV batch whole (within the batch body limit),
+// checks its header and hands its rows out as samples.
+func (d *Deps) readCSVBatch(c echo.Context) (*batchPlan, func() (*sampleJob, error), error) {
+	profileParams := map[string]bool{"basis": true, "sum_tolerance_percent": true, "max_unidentified_percent": true}
+	plan, err := d.queryPlan(c, profileParams)
+	if err != nil {
+		return nil, nil, err
+	}
+	body, err := readLimited(c.Request(), d.Batch.BodyLimitBytes)
+	if err != nil {
+		return nil, nil, err
+	}
+	if body, err = CheckEncoding(body); err != nil {
+		return nil, nil, err
+	}
+	delim := csvDelimiter(body)
+	decimalComma := delim != ','
+	r := csv.NewReader(bytes.NewReader(body))
+	r.Comma = delim
+	r.FieldsPerRecord = -1
+	r.TrimLeadingSpace = true
+	r.ReuseRecord = false
+	header, err := r.Read()
+	if err != nil {
+		return nil, nil, NewError(KindMalformed, "the CSV has no header row", FieldError{Pointer: "", Reason: csvReason(err)})
+	}
+	in, err := d.csvHeader(header)
+	if err != nil {
+		return nil, nil, err
+	}
+	plan.csv = in
+	var settings []optionMember
+	q := c.QueryParams()
+	for k := range profileParams {
+		v := q.Get(k)
+		if v == "" {
+			continue
+		}
+		if k == "basis" {
+			b, _ := json.Marshal(v)
+			settings = append(settings, optionMember{k, b})
+			continue
+		}
+		f, err := strconv.ParseFloat(v, 64)
+		if err != nil {
+			return nil, nil, NewError(KindMalformed, "a query parameter is not a number", FieldError{Pointer: "", Reason: fmt.Sprintf("%s=%q is not a number", k, v)})
+		}
+		settings = append(settings, optionMember{k, json.RawMessage(strconv.FormatFloat(f, 'g', -1, 64))})
+	}
+	sort.Slice(settings, func(i, j int) bool { return settings[i].key < settings[j].key })
+
+	var rows [][]string
+	var lines []int
+	for {
+		rec, err := r.Read()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		line, _ := r.FieldPos(0)
+		if err != nil {
+			return nil, nil, NewError(KindMalformed, "the CSV cannot be read", FieldError{Pointer: Pointer("rows", len(rows)), Reason: csvReason(err)})
+		}
+		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
+			continue // a blank line
+		}
+		rows = append(rows, rec)
+		lines = append(lines, line)
+		if len(rows) > d.Batch.MaxSamples {
+			return nil, nil, NewError(KindTooLarge, fmt.Sprintf(
+				"the CSV has more than %d rows; send it in parts or as NDJSON", d.Batch.MaxSamples))
+		}
+	}
+	i := 0
+	return plan, func() (*sampleJob, error) {
+		if i >= len(rows) {
+			return nil, nil
+		}
+		j := in.sample(i, lines[i], rows[i], decimalComma, settings)
+		rows[i] = nil
+		i++
+		return j, nil
+	}, nil
+}
+
+// csvReason is a CSV reading error in plain words.
+func csvReason(err error) string {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return fmt.Sprintf("line %d, column %d: %v", pe.Line, pe.Column, pe.Err)
+	}
+	return err.Error()
+}
+
+// csvDelimiter picks the separator the header line uses most: comma,
+// semicolon or tab (commas win a tie).
+func csvDelimiter(body []byte) rune {
+	line := body
+	if i := bytes.IndexByte(body, '\n'); i >= 0 {
+		line = body[:i]
+	}
+	best, n := ',', 0
+	for _, d := range []rune{',', ';', '\t'} {
+		k, quoted := 0, false
+		for _, b := range string(line) {
+			switch {
+			case b == '"':
+				quoted = !quoted
+			case b == d && !quoted:
+				k++
+			}
+		}
+		if k > n {
+			best, n = d, k
+		}
+	}
+	return best
+}
+
+// normaliseHeader folds a header for the sample-id and measured-value
+// names.
+func normaliseHeader(h string) string {
+	h = strings.ToLower(strings.TrimSpace(h))
+	h = strings.NewReplacer("(°c)", "c", "°c", "c", "(", "", ")", "", ".", "").Replace(h)
+	return strings.Join(strings.Fields(h), " ")
+}
+
+// csvHeader classifies the columns; every column that is neither the
+// sample id, a measured value nor a readable acid label is an error.
+func (d *Deps) csvHeader(header []string) (*csvInput, error) {
+	in := &csvInput{header: header, idCol: -1}
+	var bad []FieldError
+	for col, h := range header {
+		h = strings.TrimSpace(strings.TrimPrefix(h, "\ufeff"))
+		header[col] = h
+		norm := normaliseHeader(h)
+		switch {
+		case h == "":
+			bad = append(bad, FieldError{Pointer: Pointer("header", col), Reason: fmt.Sprintf("column %d has no header", col+1)})
+		case csvSampleHeaders[norm]:
+			if in.idCol >= 0 {
+				bad = append(bad, FieldError{Pointer: Pointer("header", col), Reason: fmt.Sprintf(
+					"column %d %q is a second sample-id column (column %d is the first)", col+1, h, in.idCol+1)})
+				continue
+			}
+			in.idCol = col
+		case csvMeasuredHeaders[norm] != "":
+			in.measure = append(in.measure, csvColumn{col, csvMeasuredHeaders[norm]})
+		default:
+			if _, err := d.Catalogue.Resolve(h); err != nil {
+				fe := FieldError{Pointer: Pointer("header", col), Reason: fmt.Sprintf("column %d %q: %s", col+1, h, labelReason(err))}
+				if ce, ok := chem.AsError(err); ok {
+					fe.Suggestions = ce.Suggestions
+				}
+				bad = append(bad, fe)
+				continue
+			}
+			in.acids = append(in.acids, csvColumn{col, h})
+		}
+	}
+	if in.idCol < 0 {
+		bad = append(bad, FieldError{Pointer: "/header", Reason: "no sample-id column: head one column sample_id (or sample, lot, id)"})
+	}
+	if len(in.acids) == 0 {
+		bad = append(bad, FieldError{Pointer: "/header", Reason: "no acid column: head each acid's column with its label (16:0, C18:1n9c, oleic …)"})
+	}
+	if len(bad) > 0 {
+		return nil, NewError(KindInvalidInput, "the CSV header has columns the service cannot read", bad...)
+	}
+	return in, nil
+}
+
+// labelReason is the message of a label error without its suggestions,
+// which the field error carries.
+func labelReason(err error) string {
+	if ce, ok := chem.AsError(err); ok {
+		return ce.Message
+	}
+	return err.Error()
+}
+
+// sample turns one row into a sample job: its JSON for the evaluations,
+// or the row's problems.
+func (in *csvInput) sample(index, line int, rec []string, decimalComma bool, settings []optionMember) *sampleJob {
+	j := &sampleJob{index: index, csv: true}
+	var bad []FieldError
+	cellErr := func(col int, reason string) {
+		bad = append(bad, FieldError{Pointer: Pointer("rows", index, "columns", col),
+			Reason: fmt.Sprintf("line %d, column %d (%s): %s", line, col+1, in.header[col], reason)})
+	}
+	if len(rec) != len(in.header) {
+		bad = append(bad, FieldError{Pointer: Pointer("rows", index),
+			Reason: fmt.Sprintf("line %d has %d fields, the header %d", line, len(rec), len(in.header))})
+		j.pre = NewError(KindMalformed, "the CSV row does not fit the header", bad...)
+		return j
+	}
+	number := func(col int) (float64, bool, bool) {
+		s := strings.TrimSpace(rec[col])
+		if csvNotFound[strings.ToLower(s)] {
+			return 0, false, true
+		}
+		if decimalComma {
+			s = strings.Replace(s, ",", ".", 1)
+		}
+		f, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			cellErr(col, fmt.Sprintf("%q is not a number", rec[col]))
+			return 0, false, false
+		}
+		return f, true, true
+	}
+	var b bytes.Buffer
+	id, _ := json.Marshal(strings.TrimSpace(rec[in.idCol]))
+	b.WriteString(`{"sample_id":`)
+	b.Write(id)
+	b.WriteString(`,"profile":{`)
+	for _, s := range settings {
+		fmt.Fprintf(&b, "%q:%s,", s.key, s.val)
+	}
+	b.WriteString(`"acids":[`)
+	j.acidCols = j.acidCols[:0]
+	for _, c := range in.acids {
+		f, present, _ := number(c.col)
+		if !present {
+			continue
+		}
+		if len(j.acidCols) > 0 {
+			b.WriteByte(',')
+		}
+		label, _ := json.Marshal(c.key)
+		fmt.Fprintf(&b, `{"acid":%s,"percent":%s}`, label, strconv.FormatFloat(f, 'g', -1, 64))
+		j.acidCols = append(j.acidCols, c.col)
+	}
+	b.WriteString(`]}`)
+	first := true
+	for _, c := range in.measure {
+		f, present, _ := number(c.col)
+		if !present {
+			continue
+		}
+		if first {
+			b.WriteString(`,"measured":{`)
+			first = false
+		} else {
+			b.WriteByte(',')
+		}
+		fmt.Fprintf(&b, "%q:%s", c.key, strconv.FormatFloat(f, 'g', -1, 64))
+		j.measuredCols = append(j.measuredCols, c)
+	}
+	if !first {
+		b.WriteByte('}')
+	}
+	b.WriteByte('}')
+	if len(bad) > 0 {
+		j.pre = NewError(KindMalformed, "the CSV row has cells that are not numbers", bad...)
+		return j
+	}
+	if len(j.acidCols) == 0 {
+		bad = append(bad, FieldError{Pointer: Pointer("rows", index), Reason: fmt.Sprintf("line %d has no acid value", line)})
+		j.pre = NewError(KindInvalidInput, "the CSV row has no acid value", bad...)
+		return j
+	}
+	j.raw = b.Bytes()
+	return j
+}
+
+// csvPointer maps a pointer into a CSV sample's JSON back to its row and
+// column.
+func (j *sampleJob) csvPointer(ptr string) string {
+	sample := Pointer("samples", j.index)
+	if !strings.HasPrefix(ptr, sample) {
+		return ptr
+	}
+	rest := ptr[len(sample):]
+	row := Pointer("rows", j.index)
+	var k int
+	if n, _ := fmt.Sscanf(rest, "/profile/acids/%d", &k); n == 1 && k >= 0 && k < len(j.acidCols) {
+		return row + Pointer("columns", j.acidCols[k])
+	}
+	for _, c := range j.measuredCols {
+		if rest == "/measured/"+c.key {
+			return row + Pointer("columns", c.col)
+		}
+	}
+	return row
+}
+
+// csvWriter writes one row per sample: the id, ok or problem, the
+// problem's type, detail and pointers, and the main figures of each
+// evaluation (numbers with a decimal point; empty where a figure is not
+// defined).
+type csvWriter struct {
+	w    *csv.Writer
+	cols []csvOut
+}
+
+// csvOut is one output column.
+type csvOut struct {
+	name string
+	get  func(r *BatchResult) string
+}
+
+func newCSVWriter(w *bufio.Writer, plan *batchPlan) *csvWriter {
+	cw := &csvWriter{w: csv.NewWriter(w)}
+	cw.cols = []csvOut{
+		{"sample_id", func(r *BatchResult) string {
+			if r.SampleID == nil {
+				return ""
+			}
+			return *r.SampleID
+		}},
+		{"status", func(r *BatchResult) string {
+			if r.Problem != nil {
+				return "problem"
+			}
+			return "ok"
+		}},
+		{"problem_type", func(r *BatchResult) string {
+			if r.Problem == nil {
+				return ""
+			}
+			return strings.TrimPrefix(r.Problem.Type, ProblemTypeBase)
+		}},
+		{"problem_detail", func(r *BatchResult) string {
+			if r.Problem == nil {
+				return ""
+			}
+			var parts []string
+			for _, e := range r.Problem.Errors {
+				parts = append(parts, e.Pointer+": "+e.Reason)
+			}
+			if len(parts) == 0 {
+				return r.Problem.Detail
+			}
+			return r.Problem.Detail + " (" + strings.Join(parts, "; ") + ")"
+		}},
+	}
+	for _, n := range plan.names {
+		cw.cols = append(cw.cols, csvColumnsOf(n, plan)...)
+	}
+	return cw
+}
+
+func num(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+
+func numPtr(v *float64) string {
+	if v == nil {
+		return ""
+	}
+	return num(*v)
+}
+
+// csvColumnsOf are an evaluation's output columns.
+func csvColumnsOf(eval string, plan *batchPlan) []csvOut {
+	prop := func(name string, f func(p *PropertiesResponse) string) csvOut {
+		return csvOut{name, func(r *BatchResult) string {
+			if r.Properties == nil {
+				return ""
+			}
+			return f(r.Properties)
+		}}
+	}
+	warnings := func(ws []WarningBody) string {
+		var codes []string
+		seen := map[string]bool{}
+		for _, w := range ws {
+			if !seen[w.Code] {
+				seen[w.Code] = true
+				codes = append(codes, w.Code)
+			}
+		}
+		return strings.Join(codes, " ")
+	}
+	switch eval {
+	case evalProperties:
+		return []csvOut{
+			prop("iodine_value", func(p *PropertiesResponse) string { return num(p.IodineValue) }),
+			prop("aocs_cd_1c_85_iodine_value", func(p *PropertiesResponse) string { return numPtr(p.AOCS.IodineValue) }),
+			prop("saponification_value", func(p *PropertiesResponse) string { return num(p.SaponificationValue) }),
+			prop("triacylglycerol_g_per_mol", func(p *PropertiesResponse) string { return num(p.MeanMolarMass.TriacylglycerolGPerMol) }),
+			prop("saturated_percent", func(p *PropertiesResponse) string { return num(p.Sums.SaturatedPercent) }),
+			prop("monounsaturated_percent", func(p *PropertiesResponse) string { return num(p.Sums.MonounsaturatedPercent) }),
+			prop("polyunsaturated_percent", func(p *PropertiesResponse) string { return num(p.Sums.PolyunsaturatedPercent) }),
+			prop("trans_percent", func(p *PropertiesResponse) string { return num(p.Sums.TransPercent) }),
+			prop("n3_percent", func(p *PropertiesResponse) string { return num(p.Sums.N3Percent) }),
+			prop("n6_percent", func(p *PropertiesResponse) string { return num(p.Sums.N6Percent) }),
+			prop("calculated_oxidizability", func(p *PropertiesResponse) string { return num(p.Indices.CalculatedOxidizability) }),
+			prop("unidentified_percent", func(p *PropertiesResponse) string { return num(p.UnidentifiedPercent) }),
+			prop("properties_warnings", func(p *PropertiesResponse) string { return warnings(p.Warnings) }),
+		}
+	case evalConformity:
+		conf := func(name string, f func(c *ConformityResponse) string) csvOut {
+			return csvOut{name, func(r *BatchResult) string {
+				if r.Conformity == nil {
+					return ""
+				}
+				return f(r.Conformity)
+			}}
+		}
+		return []csvOut{
+			conf("conformity_specification", func(c *ConformityResponse) string { return c.Specification.ID }),
+			conf("conformity_verdict", func(c *ConformityResponse) string { return c.Verdict }),
+			conf("conformity_outside", func(c *ConformityResponse) string {
+				var out []string
+				for _, a := range c.Acids {
+					if a.Verdict != "within" {
+						out = append(out, a.Acid+" "+a.Verdict)
+					}
+				}
+				for name, v := range map[string]*ValueVerdictBody{"iodine_value": c.IodineValue, "saponification_value": c.SaponificationValue, "slip_melting_point_c": c.SlipMeltingPointC} {
+					if v != nil && v.Verdict != "within" {
+						out = append(out, name+" "+v.Verdict)
+					}
+				}
+				sort.Strings(out)
+				return strings.Join(out, "; ")
+			}),
+			conf("conformity_distance", func(c *ConformityResponse) string { return num(c.Distance) }),
+			conf("closest_reference", func(c *ConformityResponse) string {
+				if len(c.ClosestReferences) == 0 {
+					return ""
+				}
+				return c.ClosestReferences[0].ID
+			}),
+		}
+	case evalMelting:
+		melt := func(name string, f func(m *MeltingResponse) string) csvOut {
+			return csvOut{name, func(r *BatchResult) string {
+				if r.Melting == nil {
+					return ""
+				}
+				return f(r.Melting)
+			}}
+		}
+		cols := []csvOut{
+			melt("slip_melting_point_c", func(m *MeltingResponse) string { return numPtr(m.SlipMeltingPointC) }),
+			melt("clear_point_c", func(m *MeltingResponse) string { return numPtr(m.ClearPointC) }),
+		}
+		for _, t := range melting.ReportingTemperaturesC() {
+			t := t
+			cols = append(cols, melt("sfc_"+strings.ReplaceAll(num(t), ".", "_")+"c_percent", func(m *MeltingResponse) string {
+				for _, p := range m.ReportingPoints {
+					if p.TemperatureC == t {
+						return num(p.SolidFatPercent)
+					}
+				}
+				return ""
+			}))
+		}
+		return cols
+	case evalForecast:
+		fc := func(name string, f func(m *ForecastResponse) string) csvOut {
+			return csvOut{name, func(r *BatchResult) string {
+				if r.Forecast == nil {
+					return ""
+				}
+				return f(r.Forecast)
+			}}
+		}
+		return []csvOut{
+			fc("forecast_iodine_value", func(f *ForecastResponse) string { return num(f.IodineValue) }),
+			fc("forecast_trans_percent", func(f *ForecastResponse) string { return num(f.TransPercent) }),
+			fc("forecast_saturated_percent", func(f *ForecastResponse) string { return num(f.SaturatedPercent) }),
+			fc("forecast_hydrogen_kg_per_tonne", func(f *ForecastResponse) string { return num(f.Hydrogen.HydrogenKgPerTonne) }),
+		}
+	}
+	return nil
+}
+
+func (cw *csvWriter) begin(*batchPlan) error {
+	names := make([]string, len(cw.cols))
+	for i, c := range cw.cols {
+		names[i] = c.name
+	}
+	return cw.w.Write(names)
+}
+
+func (cw *csvWriter) result(r *BatchResult) error {
+	rec := make([]string, len(cw.cols))
+	for i, c := range cw.cols {
+		rec[i] = c.get(r)
+	}
+	if err := cw.w.Write(rec); err != nil {
+		return err
+	}
+	cw.w.Flush()
+	return cw.w.Error()
+}
+
+func (cw *csvWriter) end(BatchSummary) error {
+	cw.w.Flush()
+	return cw.w.Error()
+}
