@@ -47,6 +47,8 @@ func loadSpec(t testing.TB) ([]byte, *openapi3.T) {
 		// by the tests that read them (NDJSON lines against BatchResult).
 		openapi3filter.RegisterBodyDecoder("application/yaml", asString)
 		openapi3filter.RegisterBodyDecoder("application/x-ndjson", asString)
+		openapi3filter.RegisterBodyDecoder("image/svg+xml", asString)
+		openapi3filter.RegisterBodyDecoder("image/png", asString)
 	})
 	require.NoError(t, specErr)
 	return specRaw, specDoc

@@ -56,4 +56,7 @@ func Routes(e *echo.Echo, d Deps) {
 	e.GET("/v1/reference-oils/:id", handleReferenceOil(d.Library))
 	e.POST("/v1/conformity", d.handle("POST /v1/conformity", runConformity(d.Catalogue, d.Library, d.Recorder)))
 	e.POST("/v1/batch", d.handleBatch())
+	e.POST("/v1/plots/solid-fat", d.handleSolidFatPlot())
+	e.POST("/v1/plots/hardening-path", d.handleHardeningPathPlot())
+	e.POST("/v1/plots/composition", d.handleCompositionPlot())
 }
