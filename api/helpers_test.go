@@ -49,6 +49,7 @@ func loadSpec(t testing.TB) ([]byte, *openapi3.T) {
 		openapi3filter.RegisterBodyDecoder("application/x-ndjson", asString)
 		openapi3filter.RegisterBodyDecoder("image/svg+xml", asString)
 		openapi3filter.RegisterBodyDecoder("image/png", asString)
+		openapi3filter.RegisterBodyDecoder("text/html", asString)
 	})
 	require.NoError(t, specErr)
 	return specRaw, specDoc

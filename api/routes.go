@@ -15,8 +15,9 @@ type Deps struct {
 	// Library is the reference and plant specifications; nil means the
 	// embedded references alone.
 	Library *identity.Library
-	// Spec is the OpenAPI document served at /openapi.yaml.
-	Spec []byte
+	// Spec is the OpenAPI document served at /openapi.yaml, SpecJSON the
+	// same as JSON at /openapi.json.
+	Spec, SpecJSON []byte
 	// Ready reports whether the instance takes traffic.
 	Ready    func() bool
 	Recorder Recorder
@@ -43,6 +44,9 @@ func Routes(e *echo.Echo, d Deps) {
 	e.GET("/healthz", handleLiveness())
 	e.GET("/readyz", handleReadiness(d.Ready))
 	e.GET("/openapi.yaml", handleSpec(d.Spec))
+	e.GET("/openapi.json", handleSpecJSON(d.SpecJSON))
+	e.GET("/", handlePage(tryItPage, tryItCSP))
+	e.GET("/docs", handlePage(docsPage, docsCSP))
 
 	e.GET("/v1/fatty-acids", handleFattyAcids(d.Catalogue))
 	e.POST("/v1/properties", d.handle("POST /v1/properties", runProperties(d.Catalogue, d.Recorder)))

@@ -2,6 +2,7 @@ package service
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -40,6 +41,10 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 	e.Logger.SetOutput(io.Discard)
 	e.HTTPErrorHandler = api.ErrorHandler(logger, a.Metrics)
 
+	specJSON, err := json.Marshal(doc)
+	if err != nil {
+		panic("service: the contract does not encode as JSON: " + err.Error())
+	}
 	streamed := streamedRoutes(doc)
 	validate, err := newValidator(doc)
 	if err != nil {
@@ -58,6 +63,7 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		Catalogue: chem.NewCatalogue(),
 		Library:   identity.NewLibrary(cfg.PlantSpecifications),
 		Spec:      spec,
+		SpecJSON:  specJSON,
 		Ready:     a.ready.Load,
 		Recorder:  a.Metrics,
 		Logger:    logger,
