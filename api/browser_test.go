@@ -67,7 +67,7 @@ func text(t *testing.T, ctx context.Context, a chromedp.Action[string]) string {
 // count is the number of elements a CSS selector matches.
 func count(t *testing.T, ctx context.Context, css string) int {
 	t.Helper()
-	n, err := chromedp.Run(ctx, chromedp.Evaluate[int](`document.querySelectorAll(` + strconv.Quote(css) + `).length`))
+	n, err := chromedp.Run(ctx, chromedp.Evaluate[int](`document.querySelectorAll(`+strconv.Quote(css)+`).length`))
 	require.NoError(t, err)
 	return n
 }
@@ -80,7 +80,7 @@ func plotPaths(t *testing.T, ctx context.Context, css string) int {
 	  if (!img || !img.complete || img.naturalWidth === 0) return 0;
 	  const svg = decodeURIComponent(img.src.slice(img.src.indexOf(",") + 1));
 	  return new DOMParser().parseFromString(svg, "image/svg+xml").querySelectorAll("path").length; })()`
-	_, err := chromedp.Run(ctx, chromedp.Poll[bool](`(` + js + `) > 0`))
+	_, err := chromedp.Run(ctx, chromedp.Poll[bool](`(`+js+`) > 0`))
 	require.NoError(t, err)
 	n, err := chromedp.Run(ctx, chromedp.Evaluate[int](js))
 	require.NoError(t, err)
