@@ -138,3 +138,49 @@ func BenchmarkBatchJSON100(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.N)*100/b.Elapsed().Seconds(), "samples/s")
 }
+
+// BenchmarkSingleRequestsLoopback posts the same 1,000 samples as single
+// /v1/properties requests over loopback from four keep-alive connections,
+// to set against BenchmarkBatchNDJSON on the same machine.
+func BenchmarkSingleRequestsLoopback(b *testing.B) {
+	srv := httptest.NewServer(newApp(b).Echo)
+	defer srv.Close()
+	const n, conns = 1000, 4
+	bodies := make([]string, n)
+	for i := range bodies {
+		s := batchSoy(i)
+		bodies[i] = `{"profile":` + s[strings.Index(s, `"profile":`)+len(`"profile":`):len(s)-1] + `}`
+	}
+	client := srv.Client()
+	client.Transport.(*http.Transport).MaxIdleConnsPerHost = conns
+	start := time.Now()
+	for b.Loop() {
+		next := make(chan string)
+		done := make(chan struct{})
+		for range conns {
+			go func() {
+				defer func() { done <- struct{}{} }()
+				for body := range next {
+					resp, err := client.Post(srv.URL+"/v1/properties", "application/json", strings.NewReader(body))
+					if err != nil {
+						b.Error(err)
+						return
+					}
+					_, _ = io.Copy(io.Discard, resp.Body)
+					resp.Body.Close()
+					if resp.StatusCode != http.StatusOK {
+						b.Errorf("status %d", resp.StatusCode)
+					}
+				}
+			}()
+		}
+		for _, body := range bodies {
+			next <- body
+		}
+		close(next)
+		for range conns {
+			<-done
+		}
+	}
+	b.ReportMetric(float64(b.N)*n/time.Since(start).Seconds(), "samples/s")
+}
