@@ -449,6 +449,25 @@ func csvColumnsOf(eval string, plan *batchPlan) []csvOut {
 			prop("n6_percent", func(p *PropertiesResponse) string { return num(p.Sums.N6Percent) }),
 			prop("calculated_oxidizability", func(p *PropertiesResponse) string { return num(p.Indices.CalculatedOxidizability) }),
 			prop("unidentified_percent", func(p *PropertiesResponse) string { return num(p.UnidentifiedPercent) }),
+			prop("measured_iodine_value_difference", func(p *PropertiesResponse) string {
+				if p.MeasuredComparison == nil || p.MeasuredComparison.IodineValue == nil {
+					return ""
+				}
+				return num(p.MeasuredComparison.IodineValue.Difference)
+			}),
+			prop("measured_values_agree", func(p *PropertiesResponse) string {
+				mc := p.MeasuredComparison
+				if mc == nil {
+					return ""
+				}
+				agree := true
+				for _, c := range []*CheckBody{mc.IodineValue, mc.SaponificationValue} {
+					if c != nil && !c.Agrees {
+						agree = false
+					}
+				}
+				return strconv.FormatBool(agree)
+			}),
 			prop("properties_warnings", func(p *PropertiesResponse) string { return warnings(p.Warnings) }),
 		}
 	case evalConformity:

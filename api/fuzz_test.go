@@ -13,7 +13,7 @@ import (
 // fuzzing, and its input checks are shared with the forecast's.
 var fuzzRoutes = []string{
 	"/v1/properties", "/v1/hydrogen-demand", "/v1/hardening/forecast", "/v1/melting", "/v1/melting/calibrate",
-	"/v1/conformity",
+	"/v1/conformity", "/v1/batch", "/v1/plots/composition",
 }
 
 // FuzzPostBodies sends arbitrary bodies to every computing operation and
@@ -40,6 +40,8 @@ func FuzzPostBodies(f *testing.F) {
 	f.Add(uint8(3), `{"profile":`+palmLike+`,"sn2_estimate":"palm_rule","temperatures_c":[-60,120]}`)
 	f.Add(uint8(0), `{"profile":{"acids":[{"acid":"18:1","percent":1e308}]}}`)
 	f.Add(uint8(5), `{"specification":{"id":"x","name":"x","acids":[{"acid":"C16:0+C18:0","max":16},{"acid":"trans","nd":true}]},"profile":`+palmLike+`}`)
+	f.Add(uint8(6), `{"evaluations":["properties","conformity"],"options":{"conformity":{"specification":"soybean"}},"samples":[{"sample_id":"a","profile":`+palmLike+`},{"sample_id":"b","profile":{"acids":[]}},3]}`)
+	f.Add(uint8(7), `{"samples":[{"label":"x","profile":`+palmLike+`}],"min_percent":50}`)
 	app := newApp(f)
 	f.Fuzz(func(t *testing.T, route uint8, body string) {
 		path := fuzzRoutes[int(route)%len(fuzzRoutes)]

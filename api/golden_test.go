@@ -41,6 +41,7 @@ var goldenCases = []struct {
 	{"reference-oils", http.MethodGet, "/v1/reference-oils", ""},
 	{"reference-oil", http.MethodGet, "/v1/reference-oils/sunflower_high_oleic", ""},
 	{"conformity", http.MethodPost, "/v1/conformity", "demo/conformity-request.json"},
+	{"batch", http.MethodPost, "/v1/batch", "demo/batch-request.json"},
 	{"healthz", http.MethodGet, "/healthz", ""},
 	{"readyz", http.MethodGet, "/readyz", ""},
 }
