@@ -12,40 +12,10 @@ import (
 	"lipidsvc/chem"
 )
 
-// isomer is the acid a C:D row of a standard stands for when a profile is
-// built from its ranges: the usual isomer of that chain in vegetable oils.
-var isomer = map[string]string{
-	"C16:1": "16:1 c9", "C17:1": "17:1 c10", "C18:1": "18:1 c9", "C18:2": "18:2 c9,c12", "C18:3": "18:3 c9,c12,c15",
-	"C20:1": "20:1 c11", "C20:2": "20:2 c11,c14", "C22:1": "22:1 c13", "C22:2": "22:2 c13,c16", "C24:1": "24:1 c15",
-}
-
-// midpointProfile is the profile at the middle of every acid range of s
-// (ND as 0, a range without minimum from 0), scaled to 100: the composition
-// a standard's box is centred on.
+// midpointProfile is MidpointProfile, failing the test on error.
 func midpointProfile(t *testing.T, cat *chem.Catalogue, s *Specification) *chem.Profile {
 	t.Helper()
-	var entries []chem.Entry
-	var sum float64
-	for _, r := range s.Acids {
-		if r.NotDetected || len(r.Terms) != 1 || r.Terms[0].Carbons == 0 || r.Terms[0].TransOnly {
-			continue
-		}
-		lo := r.Range.Min
-		if math.IsNaN(lo) {
-			lo = 0
-		}
-		mid := (lo + r.Range.Max) / 2
-		label := strings.TrimPrefix(r.Selector, "C")
-		if id, ok := isomer[r.Selector]; ok {
-			label = id
-		}
-		entries = append(entries, chem.Entry{Acid: label, Percent: mid})
-		sum += mid
-	}
-	for i := range entries {
-		entries[i].Percent *= 100 / sum
-	}
-	p, err := chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.01)
+	p, err := MidpointProfile(cat, s)
 	require.NoError(t, err, s.ID)
 	return p
 }

@@ -56,6 +56,9 @@ type Term struct {
 }
 
 // selects reports whether the term counts acid a.
+// Selects reports whether the term counts acid a.
+func (t Term) Selects(a *chem.FattyAcid) bool { return t.selects(a) }
+
 func (t Term) selects(a *chem.FattyAcid) bool {
 	if a.Branch != chem.Unbranched || a.HydroxyPosition > 0 {
 		return false
@@ -163,4 +166,48 @@ func (r *Row) sum(p *chem.Profile, values []float64) float64 {
 		}
 	}
 	return s
+}
+
+// usualIsomer is the acid a C:D row of a standard stands for when a
+// profile is built from its ranges: the usual isomer of that chain in
+// vegetable oils.
+var usualIsomer = map[string]string{
+	"C16:1": "16:1 c9", "C17:1": "17:1 c10", "C18:1": "18:1 c9", "C18:2": "18:2 c9,c12", "C18:3": "18:3 c9,c12,c15",
+	"C20:1": "20:1 c11", "C20:2": "20:2 c11,c14", "C22:1": "22:1 c13", "C22:2": "22:2 c13,c16", "C24:1": "24:1 c15",
+}
+
+// MidpointProfile is the profile at the middle of every single-chain acid
+// range of s (ND rows as 0, a range without a minimum from 0), scaled to
+// 100 on the FAME weight basis: the composition the standard's box is
+// centred on, each C:D row read as its usual vegetable-oil isomer. It is a
+// typical composition for planning, not an analysis of any lot.
+func MidpointProfile(cat *chem.Catalogue, s *Specification) (*chem.Profile, error) {
+	var entries []chem.Entry
+	var sum float64
+	for _, r := range s.Acids {
+		if r.NotDetected || len(r.Terms) != 1 || r.Terms[0].Carbons == 0 || r.Terms[0].TransOnly || math.IsNaN(r.Range.Max) {
+			continue
+		}
+		lo := r.Range.Min
+		if math.IsNaN(lo) {
+			lo = 0
+		}
+		mid := (lo + r.Range.Max) / 2
+		if mid <= 0 {
+			continue
+		}
+		label := strings.TrimPrefix(r.Selector, "C")
+		if id, ok := usualIsomer[r.Selector]; ok {
+			label = id
+		}
+		entries = append(entries, chem.Entry{Acid: label, Percent: mid})
+		sum += mid
+	}
+	if sum <= 0 {
+		return nil, chem.Errorf(chem.KindInvalid, "specification %q has no acid ranges to build a profile from", s.ID)
+	}
+	for i := range entries {
+		entries[i].Percent *= 100 / sum
+	}
+	return chem.NewProfile(cat, chem.BasisFAMEWeight, entries, 0.01)
 }
