@@ -38,6 +38,8 @@ import "math"
 //     16b-93); their errors against measurements likewise; a species' share
 //     to 0.01 %. The temperatures of a curve are echoed as requested. A
 //     calibration keeps full precision: it is an input to later requests.
+//   - Blends: mass fractions to 1e-6, costs to 0.01, constraint values and
+//     margins to 0.01.
 //   - Hardening paths: trans and saturated shares to 0.1 percent, like the
 //     certificate sums.
 const (
@@ -52,6 +54,7 @@ const (
 	decimalsMgPerG    = 1
 	decimalsFactor    = 4
 	decimalsMelting   = 1
+	decimalsShare     = 6
 )
 
 var pow10 = [...]float64{1, 10, 100, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8}

@@ -13,7 +13,7 @@ import (
 // fuzzing, and its input checks are shared with the forecast's.
 var fuzzRoutes = []string{
 	"/v1/properties", "/v1/hydrogen-demand", "/v1/hardening/forecast", "/v1/melting", "/v1/melting/calibrate",
-	"/v1/conformity", "/v1/batch", "/v1/plots/composition",
+	"/v1/conformity", "/v1/batch", "/v1/plots/composition", "/v1/blends", "/v1/blends/optimize",
 }
 
 // FuzzPostBodies sends arbitrary bodies to every computing operation and

@@ -42,6 +42,8 @@ var goldenCases = []struct {
 	{"reference-oil", http.MethodGet, "/v1/reference-oils/sunflower_high_oleic", ""},
 	{"conformity", http.MethodPost, "/v1/conformity", "demo/conformity-request.json"},
 	{"batch", http.MethodPost, "/v1/batch", "demo/batch-request.json"},
+	{"blend", http.MethodPost, "/v1/blends", "demo/blend-request.json"},
+	{"optimize", http.MethodPost, "/v1/blends/optimize", "demo/optimize-request.json"},
 	{"healthz", http.MethodGet, "/healthz", ""},
 	{"readyz", http.MethodGet, "/readyz", ""},
 }

@@ -59,6 +59,8 @@ func Routes(e *echo.Echo, d Deps) {
 	e.GET("/v1/reference-oils", handleReferenceOils(d.Library))
 	e.GET("/v1/reference-oils/:id", handleReferenceOil(d.Library))
 	e.POST("/v1/conformity", d.handle("POST /v1/conformity", runConformity(d.Catalogue, d.Library, d.Recorder)))
+	e.POST("/v1/blends", d.handle("POST /v1/blends", runBlend(d.Catalogue, d.Library, d.Recorder)))
+	e.POST("/v1/blends/optimize", d.handle("POST /v1/blends/optimize", runOptimize(d.Catalogue, d.Library, d.Recorder)))
 	e.POST("/v1/batch", d.handleBatch())
 	e.POST("/v1/plots/solid-fat", d.handleSolidFatPlot())
 	e.POST("/v1/plots/hardening-path", d.handleHardeningPathPlot())
