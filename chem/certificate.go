@@ -473,8 +473,14 @@ func computeSums(p *Profile) Sums {
 	return s
 }
 
+// ratioFloorPercent is the smallest denominator a ratio of shares is
+// taken over: below it the acids are absent in every practical sense (a
+// model's trace of 1e-160 % is not an n-3 content), and the ratio is not
+// defined.
+const ratioFloorPercent = 1e-6
+
 func ratio(num, den float64) *float64 {
-	if den <= 0 {
+	if den <= ratioFloorPercent {
 		return nil
 	}
 	r := num / den

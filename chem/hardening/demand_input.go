@@ -1,6 +1,8 @@
 package hardening
 
 import (
+	"fmt"
+
 	"lipidsvc/chem"
 )
 
@@ -136,7 +138,68 @@ func HydrogenDemand(cat *chem.Catalogue, in HydrogenDemandInput) (*HydrogenDeman
 	if err != nil {
 		return nil, err
 	}
+	sane, err := heatSense(req, res)
+	if err != nil {
+		return nil, err
+	}
+	warnings = append(warnings, sane...)
 	return &HydrogenDemandAnswer{HydrogenResult: res, Request: req, Warnings: warnings}, nil
+}
+
+// Physical sense of the heat figures. Liquid edible oils have heat
+// capacities of about 1.9 to 2.6 kJ/(kg·K) between 20 and 250 °C (the
+// default linear fit runs 2.1 to 2.5); nothing that is an oil lies outside
+// 1.2 to 4.0, so such a value is refused. Heats of hydrogenation of
+// olefinic bonds lie near −105 to −125 kJ/mol (recalled; Rogers et al.
+// 1978 show them nearly constant per bond). Edible oils flash near 300 °C
+// and a hardening batch runs at 120 to 220 °C; an adiabatic end
+// temperature above FlashPointC says the batch cannot be run without
+// cooling. Common practice, no source, for the bounds of practice.
+const (
+	MinHeatCapacityKJPerKgK, MaxHeatCapacityKJPerKgK          = 1.2, 4.0
+	TypicalHeatCapacityLowKJPerKgK, TypicalHeatCapacityHighKJ = 1.8, 2.8
+	TypicalEnthalpyLowKJPerMol, TypicalEnthalpyHighKJPerMol   = -140.0, -90.0
+	FlashPointC                                               = 300.0
+)
+
+// Warning codes of the sanity checks.
+const (
+	// WarnOutsidePractice: an input or result is physically possible but
+	// outside the practice of the trade.
+	WarnOutsidePractice = "outside_practice"
+)
+
+// heatSense refuses heat capacities no oil has and warns about unusual
+// enthalpies and end temperatures beyond the flash point.
+func heatSense(req HydrogenRequest, res HydrogenResult) ([]chem.Warning, error) {
+	var out []chem.Warning
+	h := res.Heat
+	for _, cp := range []struct {
+		v    float64
+		at   float64
+		what string
+	}{{h.HeatCapacityStartJPerGK, req.StartTemperatureC, "start"}, {h.HeatCapacityEndJPerGK, h.AdiabaticFinalTemperatureC, "adiabatic end"}} {
+		switch {
+		case cp.v < MinHeatCapacityKJPerKgK || cp.v > MaxHeatCapacityKJPerKgK:
+			return nil, chem.Errorf(chem.KindInvalid, "the heat capacity at the %s temperature (%.0f °C) is %.3g kJ/(kg·K), which no oil has (%.1f to %.1f)",
+				cp.what, cp.at, cp.v, MinHeatCapacityKJPerKgK, MaxHeatCapacityKJPerKgK).
+				WithField(fmt.Sprintf("gives %.3g kJ/(kg·K) at %.0f °C; edible oils have about 1.9 to 2.6", cp.v, cp.at), "heat")
+		case cp.v < TypicalHeatCapacityLowKJPerKgK || cp.v > TypicalHeatCapacityHighKJ:
+			out = append(out, chem.Warning{Code: WarnOutsidePractice, Message: fmt.Sprintf(
+				"the heat capacity at the %s temperature is %.3g kJ/(kg·K); edible oils have about 1.9 to 2.6", cp.what, cp.v), Path: []any{"heat"}})
+		}
+	}
+	if e := req.Heat.ReactionEnthalpyKJPerMol; e < TypicalEnthalpyLowKJPerMol || e > TypicalEnthalpyHighKJPerMol {
+		out = append(out, chem.Warning{Code: WarnOutsidePractice, Message: fmt.Sprintf(
+			"a heat of hydrogenation of %.4g kJ/mol is outside the −90 to −140 kJ/mol of olefinic bonds", e),
+			Path: []any{"heat", "reaction_enthalpy_kj_per_mol"}})
+	}
+	if h.AdiabaticFinalTemperatureC > FlashPointC {
+		out = append(out, chem.Warning{Code: WarnOutsidePractice, Message: fmt.Sprintf(
+			"without cooling the batch would reach %.0f °C, above the flash point of edible oils (about %.0f °C): the reactor's cooling must remove the heat as it is released",
+			h.AdiabaticFinalTemperatureC, FlashPointC), Path: []any{"target"}})
+	}
+	return out, nil
 }
 
 // gasReference reads the reference state of g: a named one, or a custom one

@@ -228,7 +228,28 @@ func Forecast(ctx context.Context, cat *chem.Catalogue, in ForecastInput) (*Fore
 		return nil, err
 	}
 	out.Warnings = append(append(append(feed.Warnings, out.ForecastResult.Warnings...), meltingWarnings...), sn2Warnings(sn2)...)
+	out.Warnings = append(out.Warnings, catalystSense(preset, feed, out.ForecastResult)...)
 	return out, nil
+}
+
+// CopperPracticeDropIV is how far copper catalysts are used to lower the
+// iodine value in practice: they serve the selective reduction of
+// linolenic acid in soybean and rapeseed oils ("brush hydrogenation", a
+// drop of some 10 to 25 units; common practice, no source), not hardening.
+const CopperPracticeDropIV = 30.0
+
+// catalystSense warns about a catalyst used far outside its practice.
+func catalystSense(preset string, feed *chem.Profile, r *ForecastResult) []chem.Warning {
+	if preset != PresetCopper {
+		return nil
+	}
+	drop := chem.IodineValue(feed, chem.MaterialTAG) - r.FinalIodineValue
+	if drop <= CopperPracticeDropIV {
+		return nil
+	}
+	return []chem.Warning{{Code: WarnOutsidePractice, Message: fmt.Sprintf(
+		"copper catalysts are used to lower linolenic acid with a drop of some 10 to 25 iodine-value units; a drop of %.0f units is far outside their practice, and the preset's parameters were not set for it",
+		drop), Path: []any{"catalyst", "preset"}}}
 }
 
 func sn2Warnings(sn2 *chem.Profile) []chem.Warning {

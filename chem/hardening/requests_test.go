@@ -138,3 +138,48 @@ func TestFitBadInput(t *testing.T) {
 		})
 	}
 }
+
+// Inputs and results outside physical sense are refused or warned about
+// with the reason: a heat capacity of 12 kJ/(kg·K) (no oil has one), an
+// end temperature above the flash point, an unusual heat of reaction, and
+// a copper catalyst driven far past its use.
+func TestPhysicalSense(t *testing.T) {
+	cat := chem.NewCatalogue()
+	in := HydrogenDemandInput{Feed: &FeedInput{IodineValue: fptr(133)}, Target: &IodineValueTargetInput{IodineValue: fptr(70)}, BatchMassKg: 1000,
+		Heat: &HeatInput{HeatCapacityInterceptKJPerKgK: fptr(12), HeatCapacitySlopeKJPerKgK2: fptr(0)}}
+	_, err := HydrogenDemand(cat, in)
+	ce, ok := chem.AsError(err)
+	require.True(t, ok, "%v", err)
+	require.Equal(t, chem.KindInvalid, ce.Kind)
+	require.Equal(t, []any{"heat"}, ce.Fields[0].Path)
+	require.Contains(t, ce.Message, "no oil has")
+
+	codes := func(ws []chem.Warning) map[string]bool {
+		out := map[string]bool{}
+		for _, w := range ws {
+			out[w.Code] = true
+		}
+		return out
+	}
+	in = HydrogenDemandInput{Feed: &FeedInput{IodineValue: fptr(190)}, Target: &IodineValueTargetInput{IodineValue: fptr(0)}, BatchMassKg: 1000,
+		StartTemperatureC: fptr(200), Heat: &HeatInput{ReactionEnthalpyKJPerMol: fptr(-160)}}
+	ans, err := HydrogenDemand(cat, in)
+	require.NoError(t, err)
+	require.Greater(t, ans.Heat.AdiabaticFinalTemperatureC, FlashPointC)
+	require.True(t, codes(ans.Warnings)[WarnOutsidePractice])
+	// The enthalpy, the end temperature, and the heat capacity the linear
+	// fit gives when extrapolated to that temperature.
+	require.Len(t, ans.Warnings, 3, "%v", ans.Warnings)
+
+	in = HydrogenDemandInput{Feed: &FeedInput{IodineValue: fptr(133)}, Target: &IodineValueTargetInput{IodineValue: fptr(120)}, BatchMassKg: 1000}
+	ans, err = HydrogenDemand(cat, in)
+	require.NoError(t, err)
+	require.False(t, codes(ans.Warnings)[WarnOutsidePractice], "an ordinary batch: %v", ans.Warnings)
+
+	for target, warned := range map[float64]bool{115: false, 70: true} {
+		fa, err := Forecast(context.Background(), cat, ForecastInput{Profile: soyInput, Target: &ForecastTargetInput{IodineValue: fptr(target)},
+			Catalyst: &CatalystInput{Preset: PresetCopper}})
+		require.NoError(t, err)
+		require.Equal(t, warned, codes(fa.Warnings)[WarnOutsidePractice], "copper to IV %g", target)
+	}
+}
