@@ -47,6 +47,14 @@ const (
 	// status 499 (a common proxy convention, not an HTTP status) keeps such
 	// requests apart from the service's own failures in logs and metrics.
 	KindClientClosed
+	// KindUnauthorized: no API key, or one that is not valid.
+	KindUnauthorized
+	// KindOverloaded: the request's cost class is at its in-flight limit;
+	// retry after the Retry-After header's seconds.
+	KindOverloaded
+	// KindWorkCap: the request asks for more work than the service does
+	// for one request (iterations × problem size).
+	KindWorkCap
 )
 
 // StatusClientClosed is the status recorded for KindClientClosed.
@@ -69,7 +77,13 @@ var problemTypes = map[Kind]struct {
 	KindMethodNotAllowed: {http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed on this resource"},
 	KindUnavailable:      {http.StatusServiceUnavailable, "unavailable", "The service could not answer in time"},
 	KindClientClosed:     {StatusClientClosed, "client-closed", "The client closed the request"},
+	KindUnauthorized:     {http.StatusUnauthorized, "unauthorized", "A valid API key is required"},
+	KindOverloaded:       {http.StatusServiceUnavailable, "overloaded", "The service is at its limit for this kind of request"},
+	KindWorkCap:          {http.StatusUnprocessableEntity, "work-cap-exceeded", "The request asks for more work than one request may do"},
 }
+
+// RetryAfterSeconds is the Retry-After of an overloaded answer.
+const RetryAfterSeconds = 1
 
 // ProblemTypeBase prefixes every problem type URI.
 const ProblemTypeBase = "urn:lipidsvc:problem:"
@@ -272,6 +286,8 @@ func ErrorHandler(logger *slog.Logger, rec Recorder) echo.HTTPErrorHandler {
 		switch {
 		case e.Kind == KindClientClosed:
 			// Not a failure of ours: the access log records the 499.
+		case e.Kind == KindOverloaded:
+			// Deliberate shedding, counted by its own metric.
 		case pt.status >= 500:
 			logger.ErrorContext(c.Request().Context(), "request failed",
 				"request_id", p.RequestID, "status", pt.status, "path", p.Instance, "cause", err.Error())
@@ -282,6 +298,12 @@ func ErrorHandler(logger *slog.Logger, rec Recorder) echo.HTTPErrorHandler {
 		if merr != nil {
 			body = []byte(`{"type":"` + ProblemTypeBase + `internal","title":"Internal error","status":500,"detail":"internal error","instance":"","request_id":""}`)
 			pt.status = http.StatusInternalServerError
+		}
+		switch e.Kind {
+		case KindOverloaded:
+			c.Response().Header().Set("Retry-After", strconv.Itoa(RetryAfterSeconds))
+		case KindUnauthorized:
+			c.Response().Header().Set("WWW-Authenticate", `Bearer realm="lipidsvc"`)
 		}
 		if c.Request().Method == http.MethodHead {
 			_ = c.NoContent(pt.status)

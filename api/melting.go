@@ -276,7 +276,7 @@ func runMelting(cat *chem.Catalogue, rec Recorder) operation {
 		if err := decodeBytes(b, &body); err != nil {
 			return nil, err
 		}
-		res, err := melting.Melt(cat, body.input())
+		res, err := melting.MeltContext(ctx, cat, body.input())
 		if err != nil {
 			return nil, err
 		}

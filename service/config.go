@@ -7,6 +7,7 @@ import (
 	"io"
 	"log/slog"
 	"os"
+	"runtime"
 	"strconv"
 	"strings"
 	"time"
@@ -59,6 +60,24 @@ type Config struct {
 	// BatchWorkers is how many samples are evaluated at once
 	// (LIPIDSVC_BATCH_WORKERS); 0 means one per core.
 	BatchWorkers int
+	// InFlight limits the requests in flight per cost class
+	// (LIPIDSVC_MAX_INFLIGHT_CHEAP, _MEDIUM, _EXPENSIVE, _BATCH).
+	InFlight InFlightLimits
+	// MaxBodyReads bounds the bodies read and validated at once
+	// (LIPIDSVC_MAX_BODY_READS); BodyReadWait is how long a request waits
+	// for a slot before 503 (LIPIDSVC_BODY_READ_WAIT).
+	MaxBodyReads int
+	BodyReadWait time.Duration
+	// MaxConnections caps the open connections of the API listener
+	// (LIPIDSVC_MAX_CONNECTIONS); 0 means no cap.
+	MaxConnections int
+	// APIKeysFile names the file of API keys (LIPIDSVC_API_KEYS_FILE);
+	// unset, the service answers without keys. APIKeys are its keys.
+	APIKeysFile string
+	APIKeys     []APIKey
+	// CORSOrigins are the browser origins allowed to call the API
+	// (LIPIDSVC_CORS_ORIGINS, comma-separated); none means CORS is off.
+	CORSOrigins []string
 }
 
 // DefaultConfig is the configuration with nothing set.
@@ -67,18 +86,23 @@ func DefaultConfig() Config {
 		Addr:              ":8080",
 		MetricsAddr:       ":9090",
 		LogLevel:          slog.LevelInfo,
-		BodyLimitBytes:    1 << 20,
+		BodyLimitBytes:    512 << 10,
 		RequestTimeout:    10 * time.Second,
 		ReadHeaderTimeout: 5 * time.Second,
 		ReadTimeout:       15 * time.Second,
 		WriteTimeout:      30 * time.Second,
-		IdleTimeout:       120 * time.Second,
+		IdleTimeout:       30 * time.Second,
 		DrainDelay:        5 * time.Second,
 		ShutdownTimeout:   15 * time.Second,
 
 		BatchMaxSamples:     10000,
 		BatchBodyLimitBytes: 64 << 20,
 		BatchTimeout:        30 * time.Minute,
+
+		InFlight:       DefaultInFlightLimits(),
+		MaxBodyReads:   4 * runtime.GOMAXPROCS(0),
+		BodyReadWait:   2 * time.Second,
+		MaxConnections: 512,
 	}
 }
 
@@ -140,6 +164,34 @@ func LoadConfig(args []string, getenv func(string) string) (Config, error) {
 	}
 	intIn("LIPIDSVC_BATCH_MAX_SAMPLES", &cfg.BatchMaxSamples, 1, 1000000)
 	intIn("LIPIDSVC_BATCH_WORKERS", &cfg.BatchWorkers, 0, 256)
+	intIn("LIPIDSVC_MAX_INFLIGHT_CHEAP", &cfg.InFlight.Cheap, 1, 100000)
+	intIn("LIPIDSVC_MAX_INFLIGHT_MEDIUM", &cfg.InFlight.Medium, 1, 100000)
+	intIn("LIPIDSVC_MAX_INFLIGHT_EXPENSIVE", &cfg.InFlight.Expensive, 1, 100000)
+	intIn("LIPIDSVC_MAX_INFLIGHT_BATCH", &cfg.InFlight.Batch, 1, 1000)
+	intIn("LIPIDSVC_MAX_BODY_READS", &cfg.MaxBodyReads, 1, 10000)
+	intIn("LIPIDSVC_MAX_CONNECTIONS", &cfg.MaxConnections, 0, 1000000)
+	dur("LIPIDSVC_BODY_READ_WAIT", &cfg.BodyReadWait)
+	str("LIPIDSVC_API_KEYS_FILE", &cfg.APIKeysFile)
+	if cfg.APIKeysFile != "" {
+		keys, err := readAPIKeys(cfg.APIKeysFile)
+		if err != nil {
+			errs = append(errs, err)
+		}
+		cfg.APIKeys = keys
+	}
+	if v, ok := lookup(getenv, "LIPIDSVC_CORS_ORIGINS"); ok {
+		for _, o := range strings.Split(v, ",") {
+			o = strings.TrimSpace(o)
+			if o == "" {
+				continue
+			}
+			if o == "*" || !(strings.HasPrefix(o, "https://") || strings.HasPrefix(o, "http://")) {
+				errs = append(errs, fmt.Errorf("LIPIDSVC_CORS_ORIGINS: %q is not an origin such as https://lims.northbay.example (no wildcard)", o))
+				continue
+			}
+			cfg.CORSOrigins = append(cfg.CORSOrigins, o)
+		}
+	}
 	if v, ok := lookup(getenv, "LIPIDSVC_BATCH_BODY_LIMIT_BYTES"); ok {
 		n, err := strconv.ParseInt(v, 10, 64)
 		if err != nil || n < 1024 || n > 1<<30 {
@@ -207,6 +259,15 @@ func (c Config) LogValue() slog.Value {
 		slog.Int64("batch_body_limit_bytes", c.BatchBodyLimitBytes),
 		slog.String("batch_timeout", c.BatchTimeout.String()),
 		slog.Int("batch_workers", c.BatchWorkers),
+		slog.Int("max_inflight_cheap", c.InFlight.Cheap),
+		slog.Int("max_inflight_medium", c.InFlight.Medium),
+		slog.Int("max_inflight_expensive", c.InFlight.Expensive),
+		slog.Int("max_inflight_batch", c.InFlight.Batch),
+		slog.Int("max_body_reads", c.MaxBodyReads),
+		slog.Int("max_connections", c.MaxConnections),
+		slog.String("api_keys_file", c.APIKeysFile),
+		slog.Int("api_keys", len(c.APIKeys)),
+		slog.Any("cors_origins", c.CORSOrigins),
 	)
 }
 

@@ -21,7 +21,7 @@ func TestConfigDefaults(t *testing.T) {
 	require.NoError(t, err)
 	require.Equal(t, ":8080", cfg.Addr)
 	require.Equal(t, ":9090", cfg.MetricsAddr)
-	require.Equal(t, int64(1<<20), cfg.BodyLimitBytes)
+	require.Equal(t, int64(512<<10), cfg.BodyLimitBytes, "sized to the largest legitimate request (a 5,000-species TAG list is about 0.35 MB)")
 	require.Equal(t, slog.LevelInfo, cfg.LogLevel)
 }
 

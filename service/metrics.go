@@ -20,6 +20,8 @@ type Metrics struct {
 	calculations *prometheus.CounterVec
 	rejections   *prometheus.CounterVec
 	iterations   *prometheus.HistogramVec
+	clients      *prometheus.CounterVec
+	shed         *prometheus.CounterVec
 }
 
 // NewMetrics builds the registry with Go, process and build-info collectors.
@@ -52,12 +54,20 @@ func NewMetrics() *Metrics {
 			Help:    "Iterations (or model evaluations) an iterative solver needed, by solver.",
 			Buckets: []float64{1, 2, 5, 10, 20, 50, 100, 200, 500, 1000},
 		}, []string{"solver"}),
+		clients: prometheus.NewCounterVec(prometheus.CounterOpts{
+			Name: "lipidsvc_client_requests_total",
+			Help: "Requests by API key name (\"anonymous\" without keys configured, \"unauthenticated\" for refused ones).",
+		}, []string{"client"}),
+		shed: prometheus.NewCounterVec(prometheus.CounterOpts{
+			Name: "lipidsvc_shed_requests_total",
+			Help: "Requests answered 503 at once because their cost class was at its in-flight limit, by class.",
+		}, []string{"class"}),
 	}
 	m.registry.MustRegister(
 		collectors.NewGoCollector(),
 		collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}),
 		collectors.NewBuildInfoCollector(),
-		m.requests, m.duration, m.inFlight, m.calculations, m.rejections, m.iterations,
+		m.requests, m.duration, m.inFlight, m.calculations, m.rejections, m.iterations, m.clients, m.shed,
 	)
 	return m
 }

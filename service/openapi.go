@@ -109,6 +109,9 @@ func readBodies(doc *openapi3.T) echo.MiddlewareFunc {
 			if len(violations) > 0 {
 				return contractError(violations)
 			}
+			if release, ok := c.Get(contextKeyReleaseBody).(func()); ok {
+				release() // read and checked: the slot goes to the next body
+			}
 			c.Set(api.ContextKeyBody, body)
 			return next(c)
 		}

@@ -14,6 +14,8 @@ import (
 
 	"github.com/getkin/kin-openapi/openapi3"
 	"github.com/labstack/echo/v4"
+	"github.com/labstack/echo/v4/middleware"
+	"golang.org/x/net/netutil"
 
 	"lipidsvc/api"
 	"lipidsvc/chem"
@@ -55,8 +57,23 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		requestID(),
 		observe(logger, a.Metrics),
 		recoverPanics(logger),
+		securityHeaders(),
+	)
+	if len(cfg.CORSOrigins) > 0 {
+		e.Use(middleware.CORSWithConfig(middleware.CORSConfig{
+			AllowOrigins:  cfg.CORSOrigins,
+			AllowMethods:  []string{http.MethodGet, http.MethodPost},
+			AllowHeaders:  []string{echo.HeaderContentType, echo.HeaderAuthorization, "X-API-Key", HeaderRequestID},
+			ExposeHeaders: []string{HeaderRequestID, "Retry-After"},
+			MaxAge:        600,
+		}))
+	}
+	e.Use(
+		authenticate(cfg.APIKeys, a.Metrics),
+		shed(cfg.InFlight, a.Metrics),
 		unlessStreamed(streamed, requestTimeout(cfg.RequestTimeout)),
 		unlessStreamed(streamed, bodyLimit(cfg.BodyLimitBytes)),
+		unlessStreamed(streamed, bodyReads(cfg.MaxBodyReads, cfg.BodyReadWait, a.Metrics)),
 		unlessStreamed(streamed, readBodies(doc)),
 	)
 	api.Routes(e, api.Deps{
@@ -112,6 +129,9 @@ func Run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	if err != nil {
 		return fmt.Errorf("listening on %s: %w", cfg.Addr, err)
 	}
+	if cfg.MaxConnections > 0 {
+		apiLn = netutil.LimitListener(apiLn, cfg.MaxConnections)
+	}
 	servers := []*http.Server{newServer(cfg, app.Echo, logger)}
 	listeners := []net.Listener{apiLn}
 	if cfg.MetricsAddr != "" {
@@ -150,6 +170,12 @@ func Run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	}
 
 	app.SetReady(false)
+	// No new keep-alive exchanges once shutdown begins: each answer from
+	// now on closes its connection, so no request is sent on a connection
+	// the server is about to close.
+	for _, srv := range servers {
+		srv.SetKeepAlivesEnabled(false)
+	}
 	if serveErr == nil && cfg.DrainDelay > 0 {
 		logger.Info("draining", "delay", cfg.DrainDelay.String())
 		time.Sleep(cfg.DrainDelay)

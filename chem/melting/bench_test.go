@@ -1,10 +1,16 @@
 package melting
 
-import "testing"
+import (
+	"context"
+	"testing"
+	"time"
+
+	"github.com/stretchr/testify/require"
+)
 
 // twentyAcids is a made-up 20-acid profile (a blend-like spread of major and
 // minor acids) whose full random distribution has 4200 lumped species.
-func twentyAcids(b *testing.B) []acidPct {
+func twentyAcids(b testing.TB) []acidPct {
 	b.Helper()
 	return []acidPct{{"8:0", 0.7}, {"10:0", 0.8}, {"12:0", 1.5}, {"14:0", 4}, {"15:0", 0.6}, {"16:0", 20}, {"16:1", 3},
 		{"17:0", 0.8}, {"18:0", 8}, {"18:1", 28.2}, {"18:1 t", 0.2}, {"18:2", 20}, {"18:3", 4}, {"20:0", 1}, {"20:1", 2},
@@ -69,5 +75,36 @@ func BenchmarkMeltTwentyAcidPureSolids(b *testing.B) {
 		if _, err := MeltProfile(p, opt); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// An abandoned calculation stops soon after its context ends: the curve
+// of a 20-acid random fat on 2,000 temperatures (several seconds of work)
+// is cancelled 20 ms in and must return the context's error within
+// 100 ms of the cancellation — a bound on responsiveness to a client that
+// left, not a speed measurement.
+func TestMeltStopsWhenAbandoned(t *testing.T) {
+	p := profileOf(t, twentyAcids(t)...)
+	temps := make([]float64, 2000)
+	for i := range temps {
+		temps[i] = -20 + float64(i)*0.04
+	}
+	f, err := Prepare(p, Options{SolidModel: MultiplePureSolids, Composition: CompositionOptions{Distribution: FullRandom}, TemperaturesC: temps})
+	require.NoError(t, err)
+	ctx, cancel := context.WithCancel(context.Background())
+	done := make(chan error, 1)
+	go func() {
+		_, err := f.MeltContext(ctx)
+		done <- err
+	}()
+	time.Sleep(20 * time.Millisecond)
+	cancel()
+	start := time.Now()
+	select {
+	case err := <-done:
+		require.ErrorIs(t, err, context.Canceled)
+		t.Logf("stopped %v after the cancellation", time.Since(start))
+	case <-time.After(100 * time.Millisecond):
+		t.Fatal("the calculation ran on more than 100 ms after its context ended")
 	}
 }

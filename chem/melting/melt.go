@@ -1,6 +1,7 @@
 package melting
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"slices"
@@ -314,7 +315,11 @@ func MeltProfile(p *chem.Profile, opt Options) (*Result, error) {
 }
 
 // Melt computes the full result for a prepared fat.
-func (f *Fat) Melt() (*Result, error) {
+func (f *Fat) Melt() (*Result, error) { return f.MeltContext(context.Background()) }
+
+// MeltContext is Melt that stops, with ctx's error, between the points
+// of the curve once ctx ends (a request abandoned by its client).
+func (f *Fat) MeltContext(ctx context.Context) (*Result, error) {
 	opt := f.opt
 	temps := opt.TemperaturesC
 	if temps == nil {
@@ -338,6 +343,9 @@ func (f *Fat) Melt() (*Result, error) {
 	known := make([]curvePoint, len(all))
 	sfcAt := make(map[float64]float64, len(all))
 	for i, t := range all {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		var v float64
 		if tK := t + zeroCelsiusK; tK < clear {
 			if v, err = f.mixture.sfc(opt.SolidModel, tK, 0, opt.MaxIterations, w); err != nil {

@@ -433,11 +433,16 @@ func (m *MeasuredInput) measurements() Measurements {
 // inputs that exclude each other), KindInvalid for labels, profiles and
 // numbers that break a rule, KindNoConvergence if a solver hits its cap.
 func Melt(cat *chem.Catalogue, in MeltingInput) (*MeltingAnswer, error) {
+	return MeltContext(context.Background(), cat, in)
+}
+
+// MeltContext is Melt that stops with ctx's error once ctx ends.
+func MeltContext(ctx context.Context, cat *chem.Catalogue, in MeltingInput) (*MeltingAnswer, error) {
 	fat, warnings, err := prepareInput(cat, &in)
 	if err != nil {
 		return nil, err
 	}
-	res, err := fat.Melt()
+	res, err := fat.MeltContext(ctx)
 	if err != nil {
 		return nil, err
 	}
