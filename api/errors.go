@@ -219,6 +219,7 @@ var chemKinds = map[chem.ErrorKind]Kind{
 	chem.KindInvalid:       KindInvalidInput,
 	chem.KindOutOfDomain:   KindOutsideModel,
 	chem.KindNoConvergence: KindNoConvergence,
+	chem.KindWorkCap:       KindWorkCap,
 }
 
 // fromChem maps a domain error; its field paths, which name the request's

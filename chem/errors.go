@@ -25,6 +25,9 @@ const (
 	// adapter that validates its own contract first rarely sees it; a
 	// caller of the package without one gets the same answer.
 	KindMalformed
+	// KindWorkCap: the request asks for more work than one request may do
+	// (iterations times problem size beyond the entry point's cap).
+	KindWorkCap
 )
 
 // String names the kind for logs and tests.
@@ -38,6 +41,8 @@ func (k ErrorKind) String() string {
 		return "no_convergence"
 	case KindMalformed:
 		return "malformed"
+	case KindWorkCap:
+		return "work_cap"
 	default:
 		return "unknown"
 	}

@@ -306,6 +306,33 @@ type FitInput struct {
 	MaxIterations *int
 }
 
+// MaxFitWork caps the work of one fit: iterations × observations × (free
+// parameters + 1), the forecasts a fit may run (each Gauss–Newton step
+// forecasts every observation once for the residuals and once more per
+// free parameter for the Jacobian). At about 0.1 ms a forecast on a
+// server core the cap is a few seconds, inside the request time limit.
+const MaxFitWork = 25000
+
+// fitWorkCap refuses a fit that could run past its share of the service
+// before any work is done (KindWorkCap).
+func fitWorkCap(in FitInput) error {
+	iters := DefaultFitIterations
+	if in.MaxIterations != nil && *in.MaxIterations > 0 {
+		iters = *in.MaxIterations
+	}
+	free := len(in.FreeParameters)
+	if in.FreeParameters == nil {
+		free = len(DefaultFreeParameters())
+	}
+	work := iters * len(in.Observations) * (free + 1)
+	if work <= MaxFitWork {
+		return nil
+	}
+	return chem.Errorf(chem.KindWorkCap, "the fit may run %d iterations × %d observations × %d parameters + 1 = %d forecasts, more than the %d one request may do",
+		iters, len(in.Observations), free, work, MaxFitWork).
+		WithField(fmt.Sprintf("lower max_iterations to at most %d, or fit fewer parameters or observations at a time", MaxFitWork/max(1, len(in.Observations)*(free+1))), "max_iterations")
+}
+
 // FitAnswer is the answer of [Fit].
 type FitAnswer struct {
 	*FitResult
@@ -323,6 +350,9 @@ const WarnIodineValueComputed = "iodine_value_computed"
 // problem with a computed iodine value points at the observation's
 // profile); ctx.Err() if ctx ends first.
 func Fit(ctx context.Context, cat *chem.Catalogue, in FitInput) (*FitAnswer, error) {
+	if err := fitWorkCap(in); err != nil {
+		return nil, err
+	}
 	feed, err := cat.ReadProfileAt(in.Feed, "feed")
 	if err != nil {
 		return nil, err

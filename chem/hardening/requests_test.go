@@ -183,3 +183,21 @@ func TestPhysicalSense(t *testing.T) {
 		require.Equal(t, warned, codes(fa.Warnings)[WarnOutsidePractice], "copper to IV %g", target)
 	}
 }
+
+// A fit that could run past one request's share is refused before any
+// work, with its own kind (the API's work-cap-exceeded) and the largest
+// iteration cap that would pass.
+func TestFitWorkCap(t *testing.T) {
+	obs := make([]FitObservationInput, 40)
+	for i := range obs {
+		obs[i] = FitObservationInput{Profile: soyInput, IodineValue: fptr(120)}
+	}
+	iters := 500
+	_, err := Fit(context.Background(), chem.NewCatalogue(), FitInput{Feed: soyInput, Observations: obs, MaxIterations: &iters,
+		FreeParameters: []string{"linolenic_selectivity", "linoleic_selectivity", "trans_share", "isomerisation_rate", "trans_cis_equilibrium", "trans_saturation_rate"}})
+	ce, ok := chem.AsError(err)
+	require.True(t, ok, "%v", err)
+	require.Equal(t, chem.KindWorkCap, ce.Kind)
+	require.Equal(t, []any{"max_iterations"}, ce.Fields[0].Path)
+	require.Contains(t, ce.Fields[0].Reason, "at most 89")
+}
