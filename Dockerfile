@@ -10,7 +10,7 @@
 # Build:   docker build -t lipidsvc:dev .
 # Run:     docker run --rm -p 8080:8080 -p 9090:9090 lipidsvc:dev
 
-ARG GO_VERSION=1.26
+ARG GO_VERSION=1.27.3
 
 ############################
 # Build stage

@@ -2,6 +2,11 @@ module lipidsvc
 
 go 1.26.0
 
+// Builds that honour the toolchain line (GOTOOLCHAIN=auto, the default,
+// as in .ci/run and the Dockerfile) use this release, which carries the
+// standard library security fixes go1.26.8 lacks.
+toolchain go1.27.3
+
 require (
 	github.com/chromedp/chromedp v0.23.1
 	github.com/getkin/kin-openapi v0.153.0
@@ -41,7 +46,7 @@ require (
 	go.yaml.in/yaml/v3 v3.0.5 // indirect
 	go.yaml.in/yaml/v4 v4.0.0 // indirect
 	golang.org/x/crypto v0.59.0 // indirect
-	golang.org/x/image v0.30.0 // indirect
+	golang.org/x/image v0.48.0 // indirect
 	golang.org/x/sys v0.50.0 // indirect
 	golang.org/x/text v0.44.0 // indirect
 	golang.org/x/time v0.15.0 // indirect

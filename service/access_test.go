@@ -11,11 +11,13 @@ import (
 	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"sync"
 	"testing"
 	"time"
 
+	"github.com/prometheus/client_golang/prometheus"
 	"github.com/stretchr/testify/require"
 )
 
@@ -166,4 +168,44 @@ func TestOverloadShedsWithRetryAfter(t *testing.T) {
 	metrics := httptest.NewRecorder()
 	app.Metrics.Handler().ServeHTTP(metrics, httptest.NewRequest(http.MethodGet, "/metrics", nil))
 	require.Contains(t, metrics.Body.String(), `lipidsvc_shed_requests_total{class="expensive"} 1`)
+}
+
+// The Grafana dashboard in deploy/grafana queries only metrics the service
+// exports (or the Go and process collectors it registers).
+func TestDashboardQueriesExportedMetrics(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "deploy", "grafana", "lipidsvc-dashboard.json"))
+	require.NoError(t, err)
+	var dash struct {
+		Panels []struct {
+			Title   string
+			Targets []struct{ Expr string }
+		}
+	}
+	require.NoError(t, json.Unmarshal(raw, &dash))
+	require.NotEmpty(t, dash.Panels)
+	m := NewMetrics()
+	descs := make(chan *prometheus.Desc, 1000)
+	go func() {
+		m.registry.Describe(descs)
+		close(descs)
+	}()
+	known := map[string]bool{}
+	for d := range descs {
+		s := d.String()
+		i := strings.Index(s, `fqName: "`) + len(`fqName: "`)
+		name := s[i : i+strings.Index(s[i:], `"`)]
+		known[name] = true
+		for _, suffix := range []string{"_bucket", "_sum", "_count"} {
+			known[name+suffix] = true
+		}
+	}
+	names := regexp.MustCompile(`\b(lipidsvc_[a-z0-9_]+|process_[a-z0-9_]+|go_[a-z0-9_]+)\b`)
+	for _, p := range dash.Panels {
+		require.NotEmpty(t, p.Targets, p.Title)
+		for _, tg := range p.Targets {
+			for _, n := range names.FindAllString(tg.Expr, -1) {
+				require.True(t, known[n], "panel %q queries %s, which the service does not export", p.Title, n)
+			}
+		}
+	}
 }
