@@ -91,6 +91,7 @@ func observe(logger *slog.Logger, m *Metrics) echo.MiddlewareFunc {
 				slog.Float64("duration_ms", float64(elapsed.Microseconds())/1000),
 				slog.Int64("bytes_out", c.Response().Size),
 				slog.String("request_id", api.RequestID(c)),
+				slog.String("client", clientName(c)),
 			)
 			return nil
 		}
@@ -157,4 +158,11 @@ func unlessStreamed(streamed map[string]bool, mw echo.MiddlewareFunc) echo.Middl
 			return wrapped(c)
 		}
 	}
+}
+
+// clientName is the API key name the request was admitted under; "" for
+// public routes and refused requests.
+func clientName(c echo.Context) string {
+	name, _ := c.Get(ContextKeyClient).(string)
+	return name
 }
