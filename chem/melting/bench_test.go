@@ -2,6 +2,7 @@ package melting
 
 import (
 	"context"
+	"math"
 	"testing"
 	"time"
 
@@ -106,5 +107,30 @@ func TestMeltStopsWhenAbandoned(t *testing.T) {
 		t.Logf("stopped %v after the cancellation", time.Since(start))
 	case <-time.After(100 * time.Millisecond):
 		t.Fatal("the calculation ran on more than 100 ms after its context ended")
+	}
+}
+
+var expSink float64
+
+// BenchmarkExp sets fastExp against math.Exp on the arguments of a
+// melting curve (−40 to 5).
+func BenchmarkExp(b *testing.B) {
+	xs := make([]float64, 1024)
+	for i := range xs {
+		xs[i] = -40 + 45*float64(i)/1024
+	}
+	for _, c := range []struct {
+		name string
+		f    func(float64) float64
+	}{{"math.Exp", math.Exp}, {"fastExp", fastExp}} {
+		b.Run(c.name, func(b *testing.B) {
+			var s float64
+			for b.Loop() {
+				for _, x := range xs {
+					s += c.f(x)
+				}
+			}
+			expSink = s
+		})
 	}
 }

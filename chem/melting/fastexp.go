@@ -10,9 +10,12 @@ const (
 	ln2lo = 1.90821492927058770002e-10
 )
 
-// fastExp is e^x for the solubility terms, about three times faster than
-// math.Exp here, which matters because a melting curve evaluates thousands
-// of them. After the reduction x = k·ln 2 + r, |r| ≤ ln 2/2, e^r is the
+// fastExp is e^x for the solubility terms, which a melting curve
+// evaluates thousands of times. Measured on the 2-core development machine
+// (BenchmarkExp, BenchmarkMeltTwentyAcid*), it takes 1.2 to 1.7 times less
+// than math.Exp on the curve's arguments, which shortens a 20-acid random
+// fat's curve by about 9 % and the eutectic model's by about 20 %; an
+// earlier note here claimed three times, which it is not. After the reduction x = k·ln 2 + r, |r| ≤ ln 2/2, e^r is the
 // Taylor polynomial of degree 12 (truncation error below 1e-16 relative),
 // evaluated in Estrin's scheme, and 2^k is built from the exponent bits.
 // TestFastExp checks it against math.Exp (relative error below 2e-15);
