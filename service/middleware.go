@@ -8,6 +8,7 @@ import (
 	"log/slog"
 	"net/http"
 	"runtime/debug"
+	"sync/atomic"
 	"time"
 
 	"github.com/labstack/echo/v4"
@@ -165,4 +166,17 @@ func unlessStreamed(streamed map[string]bool, mw echo.MiddlewareFunc) echo.Middl
 func clientName(c echo.Context) string {
 	name, _ := c.Get(ContextKeyClient).(string)
 	return name
+}
+
+// closeWhenDraining asks the client to close its connection after this
+// answer once the instance is draining (see Run).
+func closeWhenDraining(draining *atomic.Bool) echo.MiddlewareFunc {
+	return func(next echo.HandlerFunc) echo.HandlerFunc {
+		return func(c echo.Context) error {
+			if draining.Load() {
+				c.Response().Header().Set(echo.HeaderConnection, "close")
+			}
+			return next(c)
+		}
+	}
 }

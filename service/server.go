@@ -24,9 +24,10 @@ import (
 
 // App is the assembled HTTP handler with the state the lifecycle needs.
 type App struct {
-	Echo    *echo.Echo
-	Metrics *Metrics
-	ready   atomic.Bool
+	Echo     *echo.Echo
+	Metrics  *Metrics
+	ready    atomic.Bool
+	draining atomic.Bool
 }
 
 // SetReady flips readiness; /readyz answers 503 while it is false.
@@ -54,6 +55,7 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		panic("service: the contract's schemas do not compile: " + err.Error())
 	}
 	e.Use(
+		closeWhenDraining(&a.draining),
 		requestID(),
 		observe(logger, a.Metrics),
 		recoverPanics(logger),
@@ -170,15 +172,19 @@ func Run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	}
 
 	app.SetReady(false)
-	// No new keep-alive exchanges once shutdown begins: each answer from
-	// now on closes its connection, so no request is sent on a connection
-	// the server is about to close.
-	for _, srv := range servers {
-		srv.SetKeepAlivesEnabled(false)
-	}
+	// No new keep-alive exchanges once shutdown begins: every answer from
+	// now on carries Connection: close, so a client opens a new connection
+	// (to another instance, once the load balancer has seen /readyz) rather
+	// than send on one the server is about to close. Idle connections are
+	// not closed now — a request may be on its way on one — but at the end
+	// of the drain, when traffic has moved.
+	app.draining.Store(true)
 	if serveErr == nil && cfg.DrainDelay > 0 {
 		logger.Info("draining", "delay", cfg.DrainDelay.String())
 		time.Sleep(cfg.DrainDelay)
+	}
+	for _, srv := range servers {
+		srv.SetKeepAlivesEnabled(false)
 	}
 	shutdownCtx, cancel := context.WithTimeout(context.Background(), cfg.ShutdownTimeout)
 	defer cancel()
