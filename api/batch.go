@@ -304,25 +304,27 @@ func (pe *preparedEval) body(s *BatchSample) []byte {
 		sort.Slice(measured, func(i, j int) bool { return measured[i].key < measured[j].key })
 		b.WriteString(`,"measured":{`)
 		for i, m := range measured {
-			if i > 0 {
-				b.WriteByte(',')
-			}
-			k, _ := json.Marshal(m.key)
-			b.Write(k)
-			b.WriteByte(':')
-			b.Write(m.val)
+			writeMember(&b, i > 0, m.key, m.val)
 		}
 		b.WriteByte('}')
 	}
 	for _, m := range pe.members {
-		b.WriteByte(',')
-		k, _ := json.Marshal(m.key)
-		b.Write(k)
-		b.WriteByte(':')
-		b.Write(m.val)
+		writeMember(&b, true, m.key, m.val)
 	}
 	b.WriteByte('}')
 	return b.Bytes()
+}
+
+// writeMember writes "key":value to an object being built, after a comma
+// unless it is the first member; the value is written as it is.
+func writeMember(b *bytes.Buffer, comma bool, key string, val json.RawMessage) {
+	if comma {
+		b.WriteByte(',')
+	}
+	k, _ := json.Marshal(key)
+	b.Write(k)
+	b.WriteByte(':')
+	b.Write(val)
 }
 
 // pointer maps a pointer into the evaluation's request back into the

@@ -63,13 +63,11 @@ func parametersOf(body []byte) json.RawMessage {
 	var b bytes.Buffer
 	b.WriteByte('{')
 	for i, m := range ms {
-		if i > 0 {
-			b.WriteByte(',')
+		var c bytes.Buffer
+		if json.Compact(&c, m.val) != nil {
+			return json.RawMessage("{}")
 		}
-		k, _ := json.Marshal(m.key)
-		b.Write(k)
-		b.WriteByte(':')
-		_ = json.Compact(&b, m.val)
+		writeMember(&b, i > 0, m.key, c.Bytes())
 	}
 	b.WriteByte('}')
 	return b.Bytes()

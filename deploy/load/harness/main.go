@@ -61,6 +61,8 @@ var targets = []target{
 	{"hydrogen_demand", "POST", "/v1/hydrogen-demand", "testdata/load/hydrogen-demand.json"},
 	{"forecast", "POST", "/v1/hardening/forecast", "testdata/load/forecast.json"},
 	{"melting", "POST", "/v1/melting", "testdata/load/melting.json"},
+	{"conformity", "POST", "/v1/conformity", "testdata/demo/conformity-request.json"},
+	{"blend", "POST", "/v1/blends", "testdata/demo/blend-request.json"},
 }
 
 type options struct {

@@ -57,7 +57,11 @@ func startServer(bin string, o options) (*server, error) {
 	cmd := exec.Command(name, args...)
 	// The service's defaults, logging included (one line per request at
 	// info): the figures are those of a production configuration.
-	cmd.Env = append(os.Environ(), "LIPIDSVC_ADDR="+addr, "LIPIDSVC_METRICS_ADDR=off", "GOMAXPROCS=")
+	// The in-flight limits are raised above the harness's connections: it
+	// measures the cost of answering, not the shedding.
+	cmd.Env = append(os.Environ(), "LIPIDSVC_ADDR="+addr, "LIPIDSVC_METRICS_ADDR=off", "GOMAXPROCS=",
+		"LIPIDSVC_MAX_INFLIGHT_CHEAP=1000", "LIPIDSVC_MAX_INFLIGHT_MEDIUM=1000", "LIPIDSVC_MAX_INFLIGHT_EXPENSIVE=1000",
+		"LIPIDSVC_MAX_BODY_READS=1000")
 	cmd.Stdout, cmd.Stderr = io.Discard, os.Stderr
 	if err := cmd.Start(); err != nil {
 		return nil, err
