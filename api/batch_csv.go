@@ -120,10 +120,10 @@ func (d *Deps) readCSVBatch(c echo.Context) (*batchPlan, func() (*sampleJob, err
 		if errors.Is(err, io.EOF) {
 			break
 		}
-		line, _ := r.FieldPos(0)
 		if err != nil {
 			return nil, nil, NewError(KindMalformed, "the CSV cannot be read", FieldError{Pointer: Pointer("rows", len(rows)), Reason: csvReason(err)})
 		}
+		line, _ := r.FieldPos(0)
 		if len(rec) == 1 && strings.TrimSpace(rec[0]) == "" {
 			continue // a blank line
 		}
