@@ -34,30 +34,53 @@ var dataMembers = map[string]bool{
 
 // parametersOf returns the request's top-level members other than its
 // data, as a JSON object with sorted keys; "{}" when there are none or the
-// body is not an object.
+// body is not an object. The body was validated: a single pass over its
+// bytes finds the members without decoding the data.
 func parametersOf(body []byte) json.RawMessage {
-	dec := json.NewDecoder(bytes.NewReader(body))
-	if t, err := dec.Token(); err != nil || t != json.Delim('{') {
-		return json.RawMessage("{}")
-	}
 	type member struct {
 		key string
-		val json.RawMessage
+		val []byte
 	}
 	var ms []member
-	for dec.More() {
-		t, err := dec.Token()
-		if err != nil {
+	i := skipWS(body, 0)
+	if i >= len(body) || body[i] != '{' {
+		return json.RawMessage("{}")
+	}
+	i++
+	for {
+		i = skipWS(body, i)
+		if i >= len(body) || body[i] == '}' {
+			break
+		}
+		if body[i] == ',' {
+			i++
+			continue
+		}
+		ks := i
+		ke := skipValue(body, i)
+		if ke < 0 {
 			return json.RawMessage("{}")
 		}
-		key, _ := t.(string)
-		var v json.RawMessage
-		if err := dec.Decode(&v); err != nil {
+		var key string
+		if json.Unmarshal(body[ks:ke], &key) != nil {
+			return json.RawMessage("{}")
+		}
+		i = skipWS(body, ke)
+		if i >= len(body) || body[i] != ':' {
+			return json.RawMessage("{}")
+		}
+		vs := skipWS(body, i+1)
+		ve := skipValue(body, vs)
+		if ve < 0 {
 			return json.RawMessage("{}")
 		}
 		if !dataMembers[key] {
-			ms = append(ms, member{key, v})
+			ms = append(ms, member{key, body[vs:ve]})
 		}
+		i = ve
+	}
+	if len(ms) == 0 {
+		return json.RawMessage("{}")
 	}
 	sort.Slice(ms, func(i, j int) bool { return ms[i].key < ms[j].key })
 	var b bytes.Buffer
@@ -71,6 +94,57 @@ func parametersOf(body []byte) json.RawMessage {
 	}
 	b.WriteByte('}')
 	return b.Bytes()
+}
+
+func skipWS(b []byte, i int) int {
+	for i < len(b) && (b[i] == ' ' || b[i] == '\t' || b[i] == '\n' || b[i] == '\r') {
+		i++
+	}
+	return i
+}
+
+// skipValue returns the index after the JSON value starting at b[i], or
+// -1 when the bytes there are not one (strings, nesting and escapes are
+// followed; the grammar inside was checked by the validator).
+func skipValue(b []byte, i int) int {
+	if i >= len(b) {
+		return -1
+	}
+	depth := 0
+	for ; i < len(b); i++ {
+		switch c := b[i]; c {
+		case '"':
+			for i++; i < len(b) && b[i] != '"'; i++ {
+				if b[i] == '\\' {
+					i++
+				}
+			}
+			if i >= len(b) {
+				return -1
+			}
+			if depth == 0 {
+				return i + 1
+			}
+		case '{', '[':
+			depth++
+		case '}', ']':
+			if depth == 0 {
+				return i // a scalar ends at its container's close
+			}
+			depth--
+			if depth == 0 {
+				return i + 1
+			}
+		case ',', ':', ' ', '\t', '\n', '\r':
+			if depth == 0 {
+				return i
+			}
+		}
+	}
+	if depth == 0 {
+		return i
+	}
+	return -1
 }
 
 // traced is a response that carries a provenance record.

@@ -1,0 +1,22 @@
+package api
+
+import (
+	"testing"
+
+	"github.com/stretchr/testify/require"
+)
+
+// The parameters of a request are its members less the data, compacted,
+// keys sorted; strings with escapes and nesting are followed.
+func TestParametersOf(t *testing.T) {
+	for body, want := range map[string]string{
+		`{"profile":{"acids":[{"acid":"a\"}","percent":1}]},"material":"free_fatty_acids"}`:       `{"material":"free_fatty_acids"}`,
+		` { "target" : { "iodine_value" : 70 } , "catalyst":{"preset":"copper"}, "path_points": 21 }`: `{"catalyst":{"preset":"copper"},"path_points":21,"target":{"iodine_value":70}}`,
+		`{"profile":{}}`: `{}`,
+		`[1,2]`:          `{}`,
+		`{"a":[1,{"b":"]"}],"c":true,"d":null,"e":-1.5e3}`: `{"a":[1,{"b":"]"}],"c":true,"d":null,"e":-1.5e3}`,
+		`{"a":`: `{}`,
+	} {
+		require.Equal(t, want, string(parametersOf([]byte(body))), body)
+	}
+}
