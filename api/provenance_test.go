@@ -10,7 +10,7 @@ import (
 // keys sorted; strings with escapes and nesting are followed.
 func TestParametersOf(t *testing.T) {
 	for body, want := range map[string]string{
-		`{"profile":{"acids":[{"acid":"a\"}","percent":1}]},"material":"free_fatty_acids"}`:       `{"material":"free_fatty_acids"}`,
+		`{"profile":{"acids":[{"acid":"a\"}","percent":1}]},"material":"free_fatty_acids"}`:           `{"material":"free_fatty_acids"}`,
 		` { "target" : { "iodine_value" : 70 } , "catalyst":{"preset":"copper"}, "path_points": 21 }`: `{"catalyst":{"preset":"copper"},"path_points":21,"target":{"iodine_value":70}}`,
 		`{"profile":{}}`: `{}`,
 		`[1,2]`:          `{}`,
