@@ -88,15 +88,19 @@ func bodyReads(n int, wait time.Duration, m *Metrics) echo.MiddlewareFunc {
 			if c.Request().Method != "POST" {
 				return next(c)
 			}
-			t := time.NewTimer(wait)
-			defer t.Stop()
 			select {
-			case sem <- struct{}{}:
-			case <-t.C:
-				m.shed.WithLabelValues("body_read").Inc()
-				return api.NewError(api.KindOverloaded, fmt.Sprintf("%d request bodies are being read; retry after %d s", n, api.RetryAfterSeconds))
-			case <-c.Request().Context().Done():
-				return c.Request().Context().Err()
+			case sem <- struct{}{}: // the usual case: a slot is free
+			default:
+				t := time.NewTimer(wait)
+				defer t.Stop()
+				select {
+				case sem <- struct{}{}:
+				case <-t.C:
+					m.shed.WithLabelValues("body_read").Inc()
+					return api.NewError(api.KindOverloaded, fmt.Sprintf("%d request bodies are being read; retry after %d s", n, api.RetryAfterSeconds))
+				case <-c.Request().Context().Done():
+					return c.Request().Context().Err()
+				}
 			}
 			released := false
 			release := func() {
