@@ -418,18 +418,9 @@ func (d *Deps) process(ctx context.Context, plan *batchPlan, j *sampleJob) {
 	ctx, cancel := context.WithTimeout(ctx, d.Batch.SampleTimeout)
 	defer cancel()
 	for _, pe := range plan.evals {
-		body := pe.body(&s)
-		mapPtr := func(p string) string { return pe.pointer(sample, &s, p) }
-		if d.Validate != nil {
-			violations, err := d.Validate(pe.def.operation, body)
-			if err == nil && len(violations) > 0 {
-				fail(contractViolation(violations), pe.name, mapPtr)
-				return
-			}
-		}
-		ans, err := pe.run(ctx, body)
+		ans, err := d.runPart(ctx, pe.def.operation, pe.run, pe.body(&s), func(p string) string { return pe.pointer(sample, &s, p) })
 		if err != nil {
-			fail(err, pe.name, mapPtr)
+			fail(err, pe.name, func(p string) string { return p })
 			return
 		}
 		switch v := ans.(type) {
@@ -448,14 +439,23 @@ func (d *Deps) process(ctx context.Context, plan *batchPlan, j *sampleJob) {
 	}
 }
 
-// contractViolation is the malformed-request error of a part that does not
-// match the contract.
-func contractViolation(fields []FieldError) *Error {
-	detail := "the request does not match the contract"
-	if len(fields) == 1 {
-		detail += ": " + fields[0].Reason
+// ContractError is the one malformed-request error for a body, or a part
+// of one, that does not match the contract: a pointer per violation (each
+// once); the schema's own text is never echoed.
+func ContractError(fields []FieldError) *Error {
+	var out []FieldError
+	seen := map[string]bool{}
+	for _, f := range fields {
+		if k := f.Pointer + "\x00" + f.Reason; !seen[k] {
+			seen[k] = true
+			out = append(out, f)
+		}
 	}
-	return NewError(KindMalformed, detail, fields...)
+	detail := "the request does not match the contract"
+	if len(out) == 1 {
+		detail += ": " + out[0].Reason
+	}
+	return NewError(KindMalformed, detail, out...)
 }
 
 // batchWriter writes results in one of the output formats.
@@ -519,7 +519,6 @@ func (d *Deps) handleBatch() echo.HandlerFunc {
 		}
 		h := c.Response().Header()
 		h.Set(echo.HeaderContentType, out)
-		h.Set("X-Content-Type-Options", "nosniff")
 		c.Response().WriteHeader(http.StatusOK)
 		flush := func() error {
 			d.extendWrite(rc)
@@ -728,7 +727,7 @@ func (d *Deps) readJSONBatch(c echo.Context) (*batchPlan, func() (*sampleJob, er
 			return nil, nil, NewError(KindMalformed, "the request body is not valid JSON", FieldError{Pointer: "", Reason: err.Error()})
 		}
 		if len(violations) > 0 {
-			return nil, nil, contractViolation(violations)
+			return nil, nil, ContractError(violations)
 		}
 	}
 	var br BatchRequest

@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"sort"
 	"strconv"
 	"strings"
@@ -266,8 +267,8 @@ func (in *csvInput) sample(index, line int, rec []string, decimalComma bool, set
 			s = strings.Replace(s, ",", ".", 1)
 		}
 		f, err := strconv.ParseFloat(s, 64)
-		if err != nil {
-			cellErr(col, fmt.Sprintf("%q is not a number", rec[col]))
+		if err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
+			cellErr(col, fmt.Sprintf("%q is not a finite number", rec[col]))
 			return 0, false, false
 		}
 		return f, true, true
@@ -278,7 +279,8 @@ func (in *csvInput) sample(index, line int, rec []string, decimalComma bool, set
 	b.Write(id)
 	b.WriteString(`,"profile":{`)
 	for _, s := range settings {
-		fmt.Fprintf(&b, "%q:%s,", s.key, s.val)
+		writeMember(&b, false, s.key, s.val)
+		b.WriteByte(',')
 	}
 	b.WriteString(`"acids":[`)
 	j.acidCols = j.acidCols[:0]
@@ -290,8 +292,11 @@ func (in *csvInput) sample(index, line int, rec []string, decimalComma bool, set
 		if len(j.acidCols) > 0 {
 			b.WriteByte(',')
 		}
+		b.WriteByte('{')
 		label, _ := json.Marshal(c.key)
-		fmt.Fprintf(&b, `{"acid":%s,"percent":%s}`, label, strconv.FormatFloat(f, 'g', -1, 64))
+		writeMember(&b, false, "acid", label)
+		writeMember(&b, true, "percent", jsonNumber(f))
+		b.WriteByte('}')
 		j.acidCols = append(j.acidCols, c.col)
 	}
 	b.WriteString(`]}`)
@@ -303,11 +308,9 @@ func (in *csvInput) sample(index, line int, rec []string, decimalComma bool, set
 		}
 		if first {
 			b.WriteString(`,"measured":{`)
-			first = false
-		} else {
-			b.WriteByte(',')
 		}
-		fmt.Fprintf(&b, "%q:%s", c.key, strconv.FormatFloat(f, 'g', -1, 64))
+		writeMember(&b, !first, c.key, jsonNumber(f))
+		first = false
 		j.measuredCols = append(j.measuredCols, c)
 	}
 	if !first {
@@ -326,6 +329,9 @@ func (in *csvInput) sample(index, line int, rec []string, decimalComma bool, set
 	j.raw = b.Bytes()
 	return j
 }
+
+// jsonNumber writes a finite number as JSON.
+func jsonNumber(f float64) []byte { return strconv.AppendFloat(nil, f, 'g', -1, 64) }
 
 // csvPointer maps a pointer into a CSV sample's JSON back to its row and
 // column.

@@ -254,3 +254,21 @@ type bytesRecorder struct {
 	body  []byte
 	ctype string
 }
+
+// A cell that parses as a float but is not a finite number (NaN, Inf) is
+// that row's problem, naming the cell, like any cell that is not a number.
+func TestBatchCSVNonFiniteCell(t *testing.T) {
+	app := newApp(t)
+	body := "sample_id;C16:0;C18:1n9c\nA;10;90\nB;NaN;90\nC;Inf;90\n"
+	rec := do(t, app, call{method: http.MethodPost, path: "/v1/batch?evaluations=properties", body: body,
+		header: map[string]string{"Content-Type": "text/csv"}})
+	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	got := decode[api.BatchResponse](t, rec)
+	require.Equal(t, 1, got.Succeeded)
+	for _, i := range []int{1, 2} {
+		p := got.Results[i].Problem
+		require.NotNil(t, p)
+		require.Equal(t, api.Pointer("rows", i, "columns", 1), p.Errors[0].Pointer)
+		require.Contains(t, p.Errors[0].Reason, "not a finite number")
+	}
+}

@@ -35,3 +35,32 @@ func (d *Deps) provenance(operation, requestID string, params []byte, methods []
 	return &Provenance{Service: ServiceName, Version: d.Version, RequestID: requestID, Operation: operation,
 		Methods: methods, Parameters: params}
 }
+
+// runPart runs an operation on a request assembled from parts of another
+// (a batch sample with the batch's options, a plot's samples): the
+// assembled body is validated against the operation's contract first,
+// and the pointers of its problems are mapped back into the outer request
+// with mapPtr. The batch and the plots share it, so a part is checked and
+// answered exactly as the operation's own route would.
+func (d *Deps) runPart(ctx context.Context, op string, run operation, body []byte, mapPtr func(string) string) (traced, error) {
+	remap := func(e *Error) *Error {
+		for i := range e.Fields {
+			e.Fields[i].Pointer = mapPtr(e.Fields[i].Pointer)
+		}
+		return e
+	}
+	if d.Validate != nil {
+		violations, err := d.Validate(op, body)
+		if err != nil {
+			return nil, NewError(KindMalformed, "the request body is not valid JSON", FieldError{Pointer: "", Reason: err.Error()})
+		}
+		if len(violations) > 0 {
+			return nil, remap(ContractError(violations))
+		}
+	}
+	ans, err := run(ctx, body)
+	if err != nil {
+		return nil, remap(classify(err))
+	}
+	return ans, nil
+}

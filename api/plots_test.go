@@ -85,6 +85,8 @@ func plotCall(t *testing.T, path, body string, header map[string]string) []byte 
 	t.Helper()
 	rec := do(t, newApp(t), call{method: http.MethodPost, path: path, body: body, header: header})
 	require.Equal(t, http.StatusOK, rec.Code, rec.Body.String())
+	// An SVG opened on its own must keep its inline styles.
+	require.Contains(t, rec.Header().Get("Content-Security-Policy"), "style-src 'unsafe-inline'")
 	return rec.Body.Bytes()
 }
 

@@ -51,9 +51,9 @@ func pageCSP(page []byte) string {
 func handlePage(page []byte, csp string) echo.HandlerFunc {
 	return func(c echo.Context) error {
 		h := c.Response().Header()
+		// The service's security headers are set for every answer; a
+		// page replaces the policy with its own and may be cached.
 		h.Set("Content-Security-Policy", csp)
-		h.Set("X-Content-Type-Options", "nosniff")
-		h.Set("Referrer-Policy", "no-referrer")
 		h.Set("Cache-Control", "no-cache")
 		return c.HTMLBlob(http.StatusOK, page)
 	}

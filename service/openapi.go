@@ -68,12 +68,7 @@ func operationRoutes(doc *openapi3.T) map[string]*routers.Route {
 // handler, which decodes them once. Routing is echo's, so no servers: host
 // matching gets in the way behind an ingress; undocumented routes pass to
 // routing, which answers 404 or 405.
-func readBodies(doc *openapi3.T) echo.MiddlewareFunc {
-	schemas, err := compileBodies(doc)
-	if err != nil {
-		// LoadSpec compiled the same document without error.
-		panic("service: the contract's request schemas do not compile: " + err.Error())
-	}
+func readBodies(schemas map[string]*schemaNode) echo.MiddlewareFunc {
 	return func(next echo.HandlerFunc) echo.HandlerFunc {
 		return func(c echo.Context) error {
 			req := c.Request()
@@ -107,7 +102,7 @@ func readBodies(doc *openapi3.T) echo.MiddlewareFunc {
 				}
 			}
 			if len(violations) > 0 {
-				return contractError(violations)
+				return api.ContractError(violations)
 			}
 			if release, ok := c.Get(contextKeyReleaseBody).(func()); ok {
 				release() // read and checked: the slot goes to the next body
@@ -170,29 +165,4 @@ func checkMediaType(req *http.Request) error {
 			fmt.Sprintf("the request body must not be encoded (Content-Encoding %q)", enc))
 	}
 	return nil
-}
-
-// contractError turns the violations of the contract into one malformed-
-// request error with a JSON pointer per violation; the schema's own text
-// is never echoed.
-func contractError(fields []api.FieldError) error {
-	fields = dedupe(fields)
-	detail := "the request does not match the contract"
-	if len(fields) == 1 {
-		detail += ": " + fields[0].Reason
-	}
-	return api.NewError(api.KindMalformed, detail, fields...)
-}
-
-func dedupe(in []api.FieldError) []api.FieldError {
-	var out []api.FieldError
-	seen := map[string]bool{}
-	for _, f := range in {
-		k := f.Pointer + "\x00" + f.Reason
-		if !seen[k] {
-			seen[k] = true
-			out = append(out, f)
-		}
-	}
-	return out
 }

@@ -49,11 +49,12 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		panic("service: the contract does not encode as JSON: " + err.Error())
 	}
 	streamed := streamedRoutes(doc)
-	validate, err := newValidator(doc)
+	schemas, err := compileContract(doc)
 	if err != nil {
 		// LoadSpec compiled the same document without error.
 		panic("service: the contract's schemas do not compile: " + err.Error())
 	}
+	validate := newValidator(schemas)
 	e.Use(
 		closeWhenDraining(&a.draining),
 		requestID(),
@@ -76,7 +77,7 @@ func NewApp(cfg Config, doc *openapi3.T, spec []byte, logger *slog.Logger) *App 
 		unlessStreamed(streamed, requestTimeout(cfg.RequestTimeout)),
 		unlessStreamed(streamed, bodyLimit(cfg.BodyLimitBytes)),
 		unlessStreamed(streamed, bodyReads(cfg.MaxBodyReads, cfg.BodyReadWait, a.Metrics)),
-		unlessStreamed(streamed, readBodies(doc)),
+		unlessStreamed(streamed, readBodies(schemas)),
 	)
 	api.Routes(e, api.Deps{
 		Catalogue: chem.NewCatalogue(),

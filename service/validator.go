@@ -30,10 +30,11 @@ func streamedRoutes(doc *openapi3.T) map[string]bool {
 	return out
 }
 
-// newValidator compiles the validator the handlers check parts of a body
-// with: schema "POST /v1/properties" is an operation's request body (echo
-// route template), "#/components/schemas/Name" a component schema.
-func newValidator(doc *openapi3.T) (api.Validator, error) {
+// compileContract compiles, once at start-up, every schema a request or a
+// part of one is validated against: "POST /v1/properties" is an
+// operation's request body (echo route template),
+// "#/components/schemas/Name" a component schema.
+func compileContract(doc *openapi3.T) (map[string]*schemaNode, error) {
 	bodies, err := compileBodies(doc)
 	if err != nil {
 		return nil, err
@@ -51,6 +52,12 @@ func newValidator(doc *openapi3.T) (api.Validator, error) {
 		}
 		bodies["#/components/schemas/"+name] = n
 	}
+	return bodies, nil
+}
+
+// newValidator is the validator the handlers check parts of a body with,
+// over the compiled schemas.
+func newValidator(bodies map[string]*schemaNode) api.Validator {
 	return func(schema string, body []byte) ([]api.FieldError, error) {
 		n := bodies[schema]
 		if n == nil {
@@ -65,6 +72,6 @@ func newValidator(doc *openapi3.T) (api.Validator, error) {
 				violations = append(violations, api.FieldError{Pointer: ptr, Reason: "duplicate member"})
 			}
 		}
-		return dedupe(violations), nil
-	}, nil
+		return violations, nil
+	}
 }

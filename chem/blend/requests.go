@@ -185,9 +185,9 @@ func Mix(cat *chem.Catalogue, lib *identity.Library, in BlendInput) (*BlendAnswe
 	if err := bad.Err("the blend is not valid"); err != nil {
 		return nil, err
 	}
-	meltOpt := opt
-	meltOpt.Composition = melting.CompositionOptions{PoolFloorMoleFraction: opt.Composition.PoolFloorMoleFraction}
-	b, err := New(comps, fractions, mode, meltOpt)
+	// The components carry their own TAG options; the blend's fat takes
+	// the mode's distribution (mixer.fat).
+	b, err := New(comps, fractions, mode, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -276,7 +276,6 @@ func Solve(ctx context.Context, cat *chem.Catalogue, lib *identity.Library, in O
 	}
 	p := Problem{Mode: mode}
 	p.Options = opt
-	p.Options.Composition = melting.CompositionOptions{PoolFloorMoleFraction: opt.Composition.PoolFloorMoleFraction}
 	if in.MaxIterations != nil {
 		p.MaxIterations = *in.MaxIterations
 	}
