@@ -1,9 +1,12 @@
 package api_test
 
 import (
+	"bytes"
 	"fmt"
 	"net/http"
 	"net/http/httptest"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -411,5 +414,32 @@ func TestNutritionFigures(t *testing.T) {
 		rec := do(t, app, call{method: http.MethodPost, path: "/v1/properties", body: `{"profile":{"acids":[{"acid":"16:0","percent":100}]},"nutrition":` + body + `}`})
 		require.Contains(t, []int{http.StatusBadRequest, http.StatusUnprocessableEntity}, rec.Code, body)
 		require.Contains(t, rec.Body.String(), ptr, body)
+	}
+}
+
+// BenchmarkEndpointHTTP runs the load harness's request bodies through the
+// whole middleware chain (httptest), for profiling an endpoint without the
+// network: go test -run XXX -bench EndpointHTTP -cpuprofile cpu.out ./api/
+func BenchmarkEndpointHTTP(b *testing.B) {
+	app := newApp(b)
+	for _, c := range []struct{ name, path, file string }{
+		{"forecast", "/v1/hardening/forecast", "forecast.json"},
+		{"melting", "/v1/melting", "melting.json"},
+		{"hydrogen_demand", "/v1/hydrogen-demand", "hydrogen-demand.json"},
+	} {
+		body, err := os.ReadFile(filepath.Join("..", "testdata", "load", c.file))
+		require.NoError(b, err)
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				req := httptest.NewRequest(http.MethodPost, c.path, bytes.NewReader(body))
+				req.Header.Set("Content-Type", "application/json")
+				rec := httptest.NewRecorder()
+				app.Echo.ServeHTTP(rec, req)
+				if rec.Code != http.StatusOK {
+					b.Fatal(rec.Code, rec.Body.String())
+				}
+			}
+		})
 	}
 }

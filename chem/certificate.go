@@ -418,7 +418,7 @@ func PropertiesOf(p *Profile, m Material) Properties {
 		out.Warnings = append(out.Warnings, Warning{WarnBasisConversion,
 			"the profile was converted to FAME weight % for AOCS Cd 1c-85, whose factors apply to that basis", nil})
 	}
-	out.Sums = computeSums(p)
+	out.Sums = SumsOf(p)
 	out.Indices, out.Warnings = computeIndices(p, out.Sums, out.Warnings)
 	return out
 }
@@ -443,7 +443,9 @@ func nonConjugatedTrans(a *FattyAcid) bool {
 	return false
 }
 
-func computeSums(p *Profile) Sums {
+// SumsOf returns the profile's composition sums, the Sums of PropertiesOf
+// without the rest of the certificate.
+func SumsOf(p *Profile) Sums {
 	var s Sums
 	for _, c := range p.Components {
 		a := c.Acid

@@ -3,6 +3,7 @@ package hardening
 import (
 	"fmt"
 	"strings"
+	"sync"
 
 	"lipidsvc/chem"
 )
@@ -13,7 +14,23 @@ type acidIndex struct {
 	groups map[[2]int][]*chem.FattyAcid // (carbons, double bonds) → entries, catalogue order, no hydroxy acids
 }
 
+// acidIndexes memoises the index of each catalogue: a catalogue never
+// changes once built, and a service keeps one for its lifetime, so the
+// index is built once instead of once per forecast (a twentieth of a
+// forecast's time). Catalogues are few and long-lived; the memo keeps each
+// it has seen.
+var acidIndexes sync.Map // *chem.Catalogue → *acidIndex
+
+// newAcidIndex returns the catalogue's index, building it on first use.
 func newAcidIndex(cat *chem.Catalogue) *acidIndex {
+	if ix, ok := acidIndexes.Load(cat); ok {
+		return ix.(*acidIndex)
+	}
+	ix, _ := acidIndexes.LoadOrStore(cat, buildAcidIndex(cat))
+	return ix.(*acidIndex)
+}
+
+func buildAcidIndex(cat *chem.Catalogue) *acidIndex {
 	ix := &acidIndex{cat: cat, groups: map[[2]int][]*chem.FattyAcid{}}
 	for _, a := range cat.Acids() {
 		if a.HydroxyPosition > 0 {

@@ -111,12 +111,15 @@
 //     hardens to 12-hydroxystearic acid, which the catalogue does not hold.
 //
 // The system is linear with constant coefficients in τ, so it is solved
-// exactly: x(τ) = exp(Aτ)·x(0), by gonum's scaling-and-squaring Padé
-// matrix exponential on one small block per chain length; an
-// eigen-decomposition would be cheaper to re-evaluate but loses accuracy
-// without bound where rates coincide or nearly do (every cis monoene decays
-// at the same rate, and a diene rate can meet the cis/trans pair's), which
-// this network makes common. With the trans network off the
+// exactly: x(τ) = exp(Aτ)·x(0), on one small block per chain length, by
+// uniformisation (Jensen's method: the rate matrix is a Markov generator,
+// so exp(Aτ) is a Poisson-weighted series of powers of a non-negative
+// matrix) with binary powers built once per catalyst by squaring and reused
+// by every evaluation along the path. Unlike an eigen-decomposition it
+// keeps full accuracy where rates coincide or nearly do (every cis monoene
+// decays at the same rate, and a diene rate can meet the cis/trans pair's),
+// which this network makes common; the tests hold it to gonum's Padé matrix
+// exponential and to the closed form of a defective chain. With the trans network off the
 // C18 part reduces to the Bateman closed form, which the tests use to check
 // the general solver. The iodine value falls strictly along the path, so a
 // target is found by the shared bracketed root finder taking Newton steps

@@ -100,7 +100,7 @@ type fitter struct {
 // the gradient Jᵀr, the Jacobian J from central differences; Newton's
 // added multiple of the identity when JᵀJ is singular acts as a
 // Levenberg–Marquardt damping. Each model evaluation is an exact forecast
-// (matrix exponential and a safeguarded Newton root on the iodine value).
+// (the exact propagator and a safeguarded Newton root on the iodine value).
 // Starting values are kept 5 % of their transformed range inside the
 // bounds; a run that ends with a parameter at a bound is repeated from
 // every preset and the best fit kept (warning WarnFitRestarted when that

@@ -175,6 +175,9 @@ type ForecastResult struct {
 	Flags Flags
 	// Warnings say where the model had to simplify for this feed.
 	Warnings []chem.Warning
+	// evaluations counts the network evaluations of the target and the
+	// path, for tests.
+	evaluations int
 }
 
 // ForecastOf predicts the composition of an oil hardened to a target with a
@@ -239,9 +242,12 @@ func ForecastOf(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (
 	states := make([][]float64, points)
 	taus[points-1], states[points-1] = tauFinal, append([]float64(nil), tr.x...)
 	states[0] = x0
+	ivEnd := tr.lastIV
+	tr.lastTau = 0
+	tr.lastIV, tr.lastSlope = net.iodineValueSlope(x0)
 	for k := 1; k < points-1; k++ {
 		iv := feedIV + (finalIV-feedIV)*float64(k)/float64(points-1)
-		tau, err := tr.solve(ctx, iv, taus[k-1], tauFinal, taus[k-1])
+		tau, err := tr.nextRoot(ctx, iv, tauFinal, ivEnd)
 		if err != nil {
 			return nil, err
 		}
@@ -250,7 +256,14 @@ func ForecastOf(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (
 	}
 	for k, tau := range taus {
 		p := chem.FromMoleFractions(net.acids, states[k], req.Feed.Basis)
-		props := chem.PropertiesOf(p, chem.MaterialTAG)
+		// A row needs the iodine value and two sums; the product, the last
+		// row, gets the full certificate.
+		var props chem.Properties
+		if k == points-1 {
+			props = chem.PropertiesOf(p, chem.MaterialTAG)
+		} else {
+			props.IodineValue, props.Sums = chem.IodineValue(p, chem.MaterialTAG), chem.SumsOf(p)
+		}
 		pt := PathPoint{
 			PathVariable:     tau,
 			IodineValue:      props.IodineValue,
@@ -293,6 +306,7 @@ func ForecastOf(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (
 		res.Sn2Product = chem.FromMoleFractions(net.acids, xb, req.Feed.Basis)
 		res.Sn13Product = chem.FromMoleFractions(net.acids, xa, req.Feed.Basis)
 	}
+	res.evaluations = tr.evals
 	res.Warnings = net.warnings()
 	return res, nil
 }

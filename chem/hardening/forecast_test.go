@@ -524,7 +524,7 @@ func TestNetworkCoversCatalogue(t *testing.T) {
 			for c := 0; c < n; c++ {
 				var s float64
 				for r := 0; r < n; r++ {
-					s += b.rates.At(r, c)
+					s += b.rates[r*b.n+c]
 				}
 				require.InDelta(t, 0, s, 1e-9, a.ID)
 			}

@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/mat"
-
 	"lipidsvc/chem"
 )
 
@@ -72,12 +70,22 @@ func (e edge) value(c Catalyst) float64 {
 
 // block is the part of the network on one chain length: hardening never
 // changes the number of carbons, so each chain length evolves on its own and
-// the matrix exponential is taken of small blocks.
+// the propagators are those of small blocks.
 type block struct {
-	idx    []int      // network indices of the block's acids
-	rates  *mat.Dense // rate matrix in block coordinates
-	scaled *mat.Dense // scratch: rates·τ
-	exp    *mat.Dense // scratch: exp(rates·τ)
+	idx []int // network indices of the block's acids
+	n   int   // len(idx)
+	// rates is the rate matrix A in block coordinates, row-major n×n.
+	rates []float64
+	// unif is the uniformisation rate s = max_i −A_ii, the fastest rate at
+	// which any acid of the block reacts (0 when nothing reacts).
+	unif float64
+	// jump is the uniformised matrix P = I + A/s, row-major: non-negative,
+	// every column summing to one.
+	jump []float64
+	// powers[k] is exp(A·2^k/s), row-major, built on demand by squaring.
+	powers [][]float64
+	// scratch vectors of length n
+	y, term, next []float64
 }
 
 // network is the reaction scheme built for one feed: which acids take part
@@ -224,9 +232,10 @@ func (net *network) buildBlocks() {
 	for _, c := range order {
 		b := byCarbons[c]
 		n := len(b.idx)
-		b.rates = mat.NewDense(n, n, nil)
-		b.scaled = mat.NewDense(n, n, nil)
-		b.exp = mat.NewDense(n, n, nil)
+		b.n = n
+		b.rates = make([]float64, n*n)
+		b.jump = make([]float64, n*n)
+		b.y, b.term, b.next = make([]float64, n), make([]float64, n), make([]float64, n)
 		net.blocks = append(net.blocks, b)
 	}
 }
@@ -238,7 +247,8 @@ func (net *network) setCatalyst(c Catalyst) {
 	local := make(map[int]int, len(net.acids))
 	owner := make(map[int]*block, len(net.acids))
 	for _, b := range net.blocks {
-		b.rates.Zero()
+		clear(b.rates)
+		b.powers = b.powers[:0]
 		for k, i := range b.idx {
 			local[i] = k
 			owner[i] = b
@@ -248,41 +258,225 @@ func (net *network) setCatalyst(c Catalyst) {
 		k := e.value(c)
 		b := owner[e.from]
 		f, t := local[e.from], local[e.to]
-		b.rates.Set(t, f, b.rates.At(t, f)+k)
-		b.rates.Set(f, f, b.rates.At(f, f)-k)
+		b.rates[t*b.n+f] += k
+		b.rates[f*b.n+f] -= k
+	}
+	for _, b := range net.blocks {
+		b.uniformise()
 	}
 }
 
 // evolve writes into x the mole fractions at path variable tau, starting
 // from x0: x(τ) = exp(Aτ)·x0, block by block.
 //
-// Why the matrix exponential: the network is linear with constant
-// coefficients, so this is its exact solution. gonum's mat.Exp uses scaling
-// and squaring with a degree-13 Padé approximant (Higham, SIAM J. Matrix
-// Anal. Appl. 26:1179, 2005), which is backward stable for any matrix. An
-// eigen-decomposition would be cheaper to re-evaluate, but the network has
-// repeated and nearly repeated rates (every cis monoene decays at 1 + ι, a
-// diene rate S_R may meet the cis/trans pair's eigenvalues), where the
-// eigenvector matrix becomes singular or defective and the error grows
-// without bound. The blocks are small (one chain length, at most about a
-// dozen acids), so the exponential costs microseconds.
+// Method: uniformisation (Jensen's method; Jensen, Skand. Aktuarietidskr.
+// 36:87, 1953; Grassmann, Comput. Oper. Res. 4:47, 1977). The network is a
+// linear system with constant coefficients whose rate matrix has
+// non-negative off-diagonal entries and columns summing to zero, the
+// generator of a continuous-time Markov chain on the acids. With s the
+// largest outflow rate of a block and P = I + A/s, which is non-negative,
 //
-// exp(Aτ) of a rate matrix is non-negative in exact arithmetic; rounding can
-// leave values of order 1e-17 below zero, which are set to zero.
+//	exp(Aτ) = e^{−sτ} Σ_k (sτ)^k/k! · P^k,
+//
+// a series of non-negative terms: no cancellation, non-negative results and
+// an error bound known in advance (the Poisson tail), whatever the
+// eigenstructure. That matters here because the network has repeated and
+// nearly repeated rates (every cis monoene decays at 1 + ι; a diene's S_R
+// can meet them), where the matrix is defective or nearly so and an
+// eigen-decomposition loses all accuracy.
+//
+// The series is summed only over a unit step, sτ < 1, where twenty terms
+// reach the rounding level. Longer paths are covered by the binary powers
+// exp(A·2^k/s), obtained once per catalyst by squaring exp(A/s) (squaring
+// non-negative matrices is also free of cancellation, "scaling and
+// squaring", Moler & Van Loan, SIAM Rev. 45:3, 2003) and reused by every
+// evaluation: τ = (m + r)/s with integer m and 0 ≤ r < 1 costs one
+// matrix-vector product per set bit of m and at most twenty for the
+// remainder, against a full matrix exponential per evaluation before.
+// Where sτ exceeds 2^62 the block is at its end state to machine precision
+// and τ is clamped there.
 func (net *network) evolve(x0 []float64, tau float64, x []float64) {
 	copy(x, x0)
 	if tau == 0 {
 		return
 	}
 	for _, b := range net.blocks {
-		b.scaled.Scale(tau, b.rates)
-		b.exp.Exp(b.scaled)
 		for r, i := range b.idx {
-			var s float64
-			for c, j := range b.idx {
-				s += b.exp.At(r, c) * x0[j]
+			b.y[r] = x0[i]
+		}
+		b.propagate(tau)
+		for r, i := range b.idx {
+			x[i] = b.y[r]
+		}
+	}
+}
+
+// uniformise sets the block's uniformisation rate and jump matrix from its
+// rate matrix and forgets the powers of the previous catalyst.
+func (b *block) uniformise() {
+	n := b.n
+	b.unif = 0
+	for i := 0; i < n; i++ {
+		b.unif = math.Max(b.unif, -b.rates[i*n+i])
+	}
+	b.powers = b.powers[:0]
+	if b.unif == 0 {
+		return
+	}
+	for i, a := range b.rates {
+		b.jump[i] = a / b.unif
+	}
+	for i := 0; i < n; i++ {
+		// Exactly non-negative: rounding of 1 + A_ii/s must not dip below 0
+		// for the fastest acid.
+		b.jump[i*n+i] = math.Max(1+b.jump[i*n+i], 0)
+	}
+}
+
+// unifTerms is the number of series terms beyond the first summed for a
+// unit step: the Poisson tail beyond it, Σ_{k>20} 1/k!, is below 2e-20.
+const unifTerms = 20
+
+// maxPowerBits bounds the binary powers kept (sτ up to 2^62).
+const maxPowerBits = 62
+
+// propagate replaces b.y by exp(A·tau)·b.y.
+func (b *block) propagate(tau float64) {
+	if b.unif == 0 {
+		return // nothing in the block reacts
+	}
+	q := math.Min(tau*b.unif, math.Ldexp(1, maxPowerBits))
+	whole := math.Floor(q)
+	m := uint64(whole)
+	for k := 0; m != 0; k++ {
+		if m&1 == 1 {
+			b.apply(b.power(k))
+		}
+		m >>= 1
+	}
+	if r := q - whole; r > 0 {
+		b.unitStep(r)
+	}
+}
+
+// unitStep replaces b.y by exp(A·r/s)·b.y for 0 < r < 1 by the series.
+func (b *block) unitStep(r float64) {
+	copy(b.term, b.y)
+	coef := 1.0
+	for k := 1; k <= unifTerms; k++ {
+		mulVec(b.next, b.jump, b.term, b.n)
+		coef *= r / float64(k)
+		for i, v := range b.next {
+			b.term[i] = v * r / float64(k)
+			b.y[i] += b.term[i]
+		}
+		if coef < 1e-18 {
+			break // the rest of the tail is below rounding
+		}
+	}
+	e := math.Exp(-r)
+	for i := range b.y {
+		b.y[i] *= e
+	}
+}
+
+// apply replaces b.y by m·b.y.
+func (b *block) apply(m []float64) {
+	mulVec(b.next, m, b.y, b.n)
+	copy(b.y, b.next)
+}
+
+// power returns exp(A·2^k/s), squaring the previous power as needed.
+func (b *block) power(k int) []float64 {
+	for len(b.powers) <= k {
+		n := b.n
+		next := make([]float64, n*n)
+		if len(b.powers) == 0 {
+			unitExp(next, b.jump, n)
+		} else {
+			prev := b.powers[len(b.powers)-1]
+			mulMat(next, prev, prev, n)
+		}
+		normaliseColumns(next, n)
+		b.powers = append(b.powers, next)
+	}
+	return b.powers[k]
+}
+
+// unitExp writes exp(P − I) = e^{−1}·Σ_k P^k/k! into dst, Horner's way:
+// I + P(I + P/2(I + P/3(…))).
+func unitExp(dst, p []float64, n int) {
+	acc := identity(n)
+	tmp := make([]float64, n*n)
+	for k := unifTerms; k >= 1; k-- {
+		mulMat(tmp, p, acc, n)
+		for i := range tmp {
+			tmp[i] /= float64(k)
+		}
+		for i := 0; i < n; i++ {
+			tmp[i*n+i]++
+		}
+		acc, tmp = tmp, acc
+	}
+	e := math.Exp(-1)
+	for i, v := range acc {
+		dst[i] = v * e
+	}
+}
+
+// normaliseColumns scales every column of m (row-major n×n, non-negative)
+// to sum to one. The exact propagator conserves chains, so its columns sum
+// to one; rounding in the series and in each squaring would otherwise let
+// the sum drift by about one rounding error per unit of sτ, a loss of
+// chains the mole balance would show.
+func normaliseColumns(m []float64, n int) {
+	for c := 0; c < n; c++ {
+		var s float64
+		for r := 0; r < n; r++ {
+			s += m[r*n+c]
+		}
+		if s > 0 {
+			for r := 0; r < n; r++ {
+				m[r*n+c] /= s
 			}
-			x[i] = math.Max(s, 0)
+		}
+	}
+}
+
+func identity(n int) []float64 {
+	m := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		m[i*n+i] = 1
+	}
+	return m
+}
+
+// mulVec writes m·v into dst (m row-major n×n).
+func mulVec(dst, m, v []float64, n int) {
+	for r := 0; r < n; r++ {
+		row := m[r*n : r*n+n]
+		var s float64
+		for c, a := range row {
+			s += a * v[c]
+		}
+		dst[r] = s
+	}
+}
+
+// mulMat writes a·b into dst (all row-major n×n; dst distinct from a and b).
+func mulMat(dst, a, b []float64, n int) {
+	clear(dst)
+	for r := 0; r < n; r++ {
+		for k := 0; k < n; k++ {
+			f := a[r*n+k]
+			if f == 0 {
+				continue
+			}
+			brow := b[k*n : k*n+n]
+			drow := dst[r*n : r*n+n]
+			for c, v := range brow {
+				drow[c] += f * v
+			}
 		}
 	}
 }
@@ -317,7 +511,7 @@ func (net *network) iodineValueSlope(x []float64) (iv, slope float64) {
 		for r, i := range b.idx {
 			var dx float64
 			for c, j := range b.idx {
-				dx += b.rates.At(r, c) * x[j]
+				dx += b.rates[r*b.n+c] * x[j]
 			}
 			slope += dx * (net.d[i]*sm - sd*(net.mass[i]+third))
 		}

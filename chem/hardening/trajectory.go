@@ -16,9 +16,18 @@ type trajectory struct {
 	feedIV float64
 	// anchorTau and anchorX are a known point of the path; later points
 	// are evolved from it, x(τ) = exp(A(τ − τa))·x(τa), which is exact and
-	// keeps ‖A·Δτ‖ small so the matrix exponential needs no squaring.
+	// keeps τ − τa small, so few binary powers are applied.
 	anchorTau float64
 	anchorX   []float64
+	// lastTau, lastIV and lastSlope are the most recent evaluation, which
+	// the path uses for its next start.
+	lastTau, lastIV, lastSlope float64
+	// prior is the path point solved before the last one (ok false until
+	// there is one), for the next start's extrapolation.
+	prior struct {
+		ok             bool
+		tau, iv, slope float64
+	}
 	// evals counts network evaluations, for benchmarks and tests.
 	evals int
 }
@@ -45,7 +54,39 @@ func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
 	} else {
 		tr.net.evolve(tr.x0, tau, tr.x)
 	}
-	return tr.net.iodineValueSlope(tr.x)
+	iv, slope = tr.net.iodineValueSlope(tr.x)
+	tr.lastTau, tr.lastIV, tr.lastSlope = tau, iv, slope
+	return iv, slope
+}
+
+// nextRoot finds the path variable of the next path point, at iodine value
+// target, between the point just solved (where the trajectory's last
+// evaluation is) and the end of the path at tauEnd, whose iodine value is
+// ivEnd. Both ends are known, so neither is evaluated again. The search
+// starts from τ(IV) extrapolated by the cubic Hermite polynomial through the
+// last two points, with their exact slopes dτ/dIV = 1/(dIV/dτ), whose error
+// falls with the fourth power of the spacing (off the single point just
+// solved, a Newton step, while there is only one); with evenly spaced path
+// points that start is usually within the tolerance after one Newton step.
+func (tr *trajectory) nextRoot(ctx context.Context, target, tauEnd, ivEnd float64) (float64, error) {
+	lo, ivLo, slopeLo := tr.lastTau, tr.lastIV, tr.lastSlope
+	start := math.NaN()
+	if slopeLo < 0 {
+		start = lo + (target-ivLo)/slopeLo
+	}
+	if p := tr.prior; p.ok && p.slope < 0 && slopeLo < 0 && p.iv != ivLo {
+		h := ivLo - p.iv
+		t := (target - p.iv) / h
+		t2, t3 := t*t, t*t*t
+		hermite := (2*t3-3*t2+1)*p.tau + (t3-2*t2+t)*h/p.slope +
+			(-2*t3+3*t2)*lo + (t3-t2)*h/slopeLo
+		if hermite > lo && hermite < tauEnd {
+			start = hermite
+		}
+	}
+	tau, err := tr.solve(ctx, target, lo, tauEnd, ivLo-target, ivEnd-target, start)
+	tr.prior.ok, tr.prior.tau, tr.prior.iv, tr.prior.slope = true, lo, ivLo, slopeLo
+	return tau, err
 }
 
 // solve finds τ in (lo, hi) with IV(τ) = target, to within ivTolerance,
@@ -64,13 +105,15 @@ func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
 // step that would leave it is replaced by bisection, or by doubling while
 // no upper end is known yet. The iteration cap ends a solve that does not
 // converge with chem.KindNoConvergence.
-func (tr *trajectory) solve(ctx context.Context, target, lo, hi, start float64) (float64, error) {
+//
+// flo and fhi are IV − target at lo and hi when known, NaN otherwise.
+func (tr *trajectory) solve(ctx context.Context, target, lo, hi, flo, fhi, start float64) (float64, error) {
 	r, err := roots.Find(roots.Problem{
 		F: func(tau float64) (float64, float64, error) {
 			iv, slope := tr.ivAt(tau)
 			return iv - target, slope, nil
 		},
-		Lo: lo, Hi: hi, FLo: math.NaN(), FHi: math.NaN(), Start: start, Step: 1,
+		Lo: lo, Hi: hi, FLo: flo, FHi: fhi, Start: start, Step: 1,
 		FTol: ivTolerance, MaxIter: rootIterations, Check: ctx.Err,
 	})
 	switch {
@@ -94,5 +137,5 @@ func (tr *trajectory) solve(ctx context.Context, target, lo, hi, start float64) 
 // which must lie strictly between 0 and the feed's iodine value, starting
 // the search at start (0 when nothing better is known).
 func (tr *trajectory) tauAt(ctx context.Context, target, start float64) (float64, error) {
-	return tr.solve(ctx, target, 0, math.Inf(1), start)
+	return tr.solve(ctx, target, 0, math.Inf(1), math.NaN(), math.NaN(), start)
 }
