@@ -2,6 +2,7 @@ package api_test
 
 import (
 	"encoding/json"
+	"fmt"
 	"net/http"
 	"strings"
 	"testing"
@@ -434,4 +435,25 @@ func TestCalibrateLibrary(t *testing.T) {
 		require.Equal(t, http.StatusBadRequest, rec.Code, rec.Body.String())
 		require.Equal(t, c.pointer, decode[api.Problem](t, rec).Errors[0].Pointer)
 	}
+}
+
+// TestCalibrationWorkCapHTTP: a library whose calibration would run far
+// past one request's share (20 fats × 100 SFC points with the model that
+// never pools species) is refused at once with 422 and the distinct
+// problem type, pointing at the fats.
+func TestCalibrationWorkCapHTTP(t *testing.T) {
+	var pts []string
+	for k := 0; k < 100; k++ {
+		pts = append(pts, fmt.Sprintf(`{"temperature_c":%g,"solid_fat_percent":%g}`, 5+0.35*float64(k), 40-0.38*float64(k)))
+	}
+	fat := `{"profile":` + palmLike + `,"sn2_estimate":"palm_rule","measured":{"sfc_points":[` + strings.Join(pts, ",") + `]}}`
+	fats := strings.TrimSuffix(strings.Repeat(fat+",", 20), ",")
+	rec := do(t, newApp(t), call{method: http.MethodPost, path: "/v1/melting/calibrate",
+		body: `{"solid_model":"multiple_pure_solids","fats":[` + fats + `]}`})
+	require.Equal(t, http.StatusUnprocessableEntity, rec.Code, rec.Body.String())
+	p := decode[api.Problem](t, rec)
+	require.Equal(t, api.ProblemTypeBase+"work-cap-exceeded", p.Type)
+	require.Len(t, p.Errors, 1)
+	require.Equal(t, "/fats", p.Errors[0].Pointer)
+	require.Contains(t, p.Errors[0].Reason, "fewer fats")
 }

@@ -106,6 +106,8 @@ type LibraryReport struct {
 	// LeaveOneOutDefined is false for a library of one fat.
 	LeaveOneOutDefined bool
 	Fats               []FatFit
+	// work is the component-solves the calibration took, for tests.
+	work float64
 }
 
 // CalibrateFats fits one correction of the melting model shared by every
@@ -128,9 +130,15 @@ type LibraryReport struct {
 // With two fats or more the fit is repeated leaving each fat out in turn,
 // and the held-out fat's error under the others' calibration is reported:
 // the honest estimate of how the calibration does on a fat it has not seen.
+//
+// A library whose CalibrationWork exceeds MaxCalibrationWork is refused
+// with KindWorkCap before any work is done.
 func CalibrateFats(ctx context.Context, fats []LibraryFat) (*LibraryReport, error) {
 	if len(fats) == 0 {
 		return nil, chem.Errorf(chem.KindInvalid, "a calibration needs at least one fat").WithField("required", "fats")
+	}
+	if err := calibrationWorkCap(fats); err != nil {
+		return nil, err
 	}
 	c := newCalibrator(ctx, fats)
 	rep := &LibraryReport{Fats: make([]FatFit, len(fats))}
@@ -166,6 +174,7 @@ func CalibrateFats(ctx context.Context, fats []LibraryFat) (*LibraryReport, erro
 		}
 	}
 	if len(fats) < 2 {
+		rep.work = c.work
 		return rep, nil
 	}
 	// Leave one out: fit on the others, judge on the one.
@@ -194,7 +203,65 @@ func CalibrateFats(ctx context.Context, fats []LibraryFat) (*LibraryReport, erro
 	if len(held) > 0 {
 		rep.LeaveOneOut, rep.LeaveOneOutDefined = c.pooledHeldOut(held, rep.Fats)
 	}
+	rep.work = c.work
 	return rep, nil
+}
+
+// calibrationSolvesPerFit bounds the SFC evaluations one fit makes per
+// measurement: the 0.25 K scan over ±MaxCalibrationShiftK (121 shifts),
+// the golden-section refinement to 1e-6 K (about 30) and the error
+// summaries before and after (a few).
+const calibrationSolvesPerFit = 160
+
+// MaxCalibrationWork caps the work of one calibration, in component-solves
+// (one equilibrium solution of one fat times its number of components).
+// A component-solve takes about 8 to 40 ns on a server core depending on
+// the solid model, so the cap is 2 to 8 seconds, inside the request time
+// limit.
+const MaxCalibrationWork = 2e8
+
+// CalibrationWork is the most work CalibrateFats may do for the library,
+// in component-solves: calibrationSolvesPerFit × F × Σ_i n_i·(P_i + s_i)
+// for F fats with n_i components, P_i SFC points and s_i = 1 for a
+// measured slip melting point (the fit on all fats and, for F ≥ 2, the F
+// leave-one-out fits, each on all fats but one, together see every
+// measurement F times). The scan and the refinement are fixed, so the bound
+// holds for SFC data; a library with only slip melting points usually takes
+// well under it (the slip search takes 10 to 20 steps), and any calibration
+// also stops when its context ends.
+func CalibrationWork(fats []LibraryFat) float64 {
+	var w float64
+	for _, lf := range fats {
+		m := lf.Measurements
+		per := float64(len(m.SFC))
+		if m.HasSlipMeltingPoint {
+			per++
+		}
+		w += float64(lf.Fat.mixture.Len()) * per
+	}
+	return calibrationSolvesPerFit * float64(max(1, len(fats))) * w
+}
+
+// calibrationWorkCap refuses a calibration that could run past its share
+// of the service before any work is done (KindWorkCap).
+func calibrationWorkCap(fats []LibraryFat) error {
+	w := CalibrationWork(fats)
+	if w <= MaxCalibrationWork {
+		return nil
+	}
+	var comps int
+	for _, lf := range fats {
+		comps += lf.Fat.mixture.Len()
+	}
+	err := chem.Errorf(chem.KindWorkCap,
+		"the calibration may take %.3g component-solves (%d fats, %d mixture components in all, every measurement seen once per fit), more than the %.3g one request may do",
+		w, len(fats), comps, float64(MaxCalibrationWork))
+	if len(fats) > 1 {
+		return err.WithField(fmt.Sprintf("calibrate on fewer fats or fewer SFC points per fat at a time (about %.0f %% of this work is allowed)",
+			100*MaxCalibrationWork/w), "fats")
+	}
+	return err.WithField(fmt.Sprintf("give fewer SFC points (about %.0f %% of this work is allowed), or a solid model that pools species",
+		100*MaxCalibrationWork/w), "measured", "sfc_points")
 }
 
 // heldOut is one leave-one-out fit: the fat left out and the calibration
@@ -246,7 +313,7 @@ func (c *calibrator) fit(base Calibration, only []int) (Calibration, []chem.Warn
 				if !cf.m.HasSlipMeltingPoint {
 					continue
 				}
-				v, err := cf.f.mixture.sfc(cf.f.opt.SolidModel, cf.m.SlipMeltingPointC+zeroCelsiusK, cal.TemperatureShiftK, cf.f.opt.MaxIterations, cf.w)
+				v, err := c.solve(cf, cf.m.SlipMeltingPointC+zeroCelsiusK, cal.TemperatureShiftK)
 				if err != nil {
 					return cal, nil, err
 				}
@@ -308,6 +375,15 @@ func (m Measurements) validate() error {
 type calibrator struct {
 	ctx  context.Context
 	fats []calFat
+	// work counts component-solves (one equilibrium solution times the
+	// mixture's components), the unit of calibrationWork.
+	work float64
+}
+
+// solve is fat cf's SFC at tK with shift s, counted.
+func (c *calibrator) solve(cf calFat, tK, s float64) (float64, error) {
+	c.work += float64(cf.f.mixture.Len())
+	return cf.f.mixture.sfc(cf.f.opt.SolidModel, tK, s, cf.f.opt.MaxIterations, cf.w)
 }
 
 type calFat struct {
@@ -358,7 +434,7 @@ func (c *calibrator) sse(s float64, only []int) (float64, error) {
 	for _, i := range c.indices(only) {
 		cf := c.fats[i]
 		for _, pt := range cf.m.SFC {
-			v, err := cf.f.mixture.sfc(cf.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, s, cf.f.opt.MaxIterations, cf.w)
+			v, err := c.solve(cf, pt.TemperatureC+zeroCelsiusK, s)
 			if err != nil {
 				return 0, err
 			}
@@ -426,7 +502,10 @@ func (c *calibrator) slip(i int, s, thr float64) (float64, bool, error) {
 	g := *c.fats[i].f
 	g.opt.Calibration = Calibration{TemperatureShiftK: s, SlipThresholdPercent: thr}
 	g.mixture = c.fats[i].f.mixture.shifted(s)
-	return g.slipPoint(g.mixture.newWorkspace(), nil, math.NaN())
+	w := g.mixture.newWorkspace()
+	t, ok, err := g.slipPoint(w, nil, math.NaN())
+	c.work += float64(w.solves * g.mixture.Len())
+	return t, ok, err
 }
 
 // meanSlipError is the mean predicted minus measured slip melting point of
@@ -493,7 +572,7 @@ func (c *calibrator) errors(cal Calibration, only []int) (CalibrationError, erro
 	for _, i := range idx {
 		cf := c.fats[i]
 		for _, pt := range cf.m.SFC {
-			v, err := cf.f.mixture.sfc(cf.f.opt.SolidModel, pt.TemperatureC+zeroCelsiusK, cal.TemperatureShiftK, cf.f.opt.MaxIterations, cf.w)
+			v, err := c.solve(cf, pt.TemperatureC+zeroCelsiusK, cal.TemperatureShiftK)
 			if err != nil {
 				return e, err
 			}

@@ -197,6 +197,8 @@ type workspace struct {
 	// the temperatures (K) of the last two solutions and the liquid
 	// fraction of the one before last, for extrapolating the warm start
 	lastT, prevT, prevL float64
+	// solves counts the calls of Mixture.sfc with this workspace.
+	solves int
 }
 
 func (m *Mixture) newWorkspace() *workspace {
@@ -241,6 +243,7 @@ func checkTemperatureC(tC float64) error {
 // sfc evaluates the solid fat content at tK with every melting point
 // shifted by shiftK.
 func (m *Mixture) sfc(model SolidModel, tK, shiftK float64, maxIter int, w *workspace) (float64, error) {
+	w.solves++
 	if tK >= m.clearPointUpperBoundK(shiftK) {
 		return 0, nil
 	}
