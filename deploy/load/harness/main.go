@@ -26,6 +26,7 @@
 package main
 
 import (
+	"debug/buildinfo"
 	"errors"
 	"flag"
 	"fmt"
@@ -145,9 +146,24 @@ func run(args []string, stdout io.Writer) error {
 		bin = filepath.Join(dir, "lipidsvc")
 		build := exec.Command("go", "build", "-trimpath", "-o", bin, ".")
 		build.Dir, build.Stdout, build.Stderr = o.repo, os.Stderr, os.Stderr
+		// The service is measured as it ships: built with the toolchain
+		// go.mod pins (fetched through the module proxy when it is not
+		// the local one), whatever GOTOOLCHAIN says here.
+		tc, err := pinnedToolchain(filepath.Join(o.repo, "go.mod"))
+		if err != nil {
+			return err
+		}
+		build.Env = os.Environ()
+		if tc != "" {
+			build.Env = append(build.Env, "GOTOOLCHAIN="+tc)
+		}
 		if err := build.Run(); err != nil {
 			return fmt.Errorf("building the service: %w", err)
 		}
+	}
+	serverGo := "unknown Go"
+	if info, err := buildinfo.ReadFile(bin); err == nil {
+		serverGo = info.GoVersion
 	}
 	srv, err := startServer(bin, o)
 	if err != nil {
@@ -155,8 +171,8 @@ func run(args []string, stdout io.Writer) error {
 	}
 	defer srv.stop()
 
-	fmt.Fprintf(stdout, "server pid %d on %s (CPU %s), harness CPU %s, %d connections, %d rounds of %s per target after %s warm-up, %s\n",
-		srv.cmd.Process.Pid, srv.addr, cpuName(o.serverCPU), cpuName(o.loadCPU), o.connections, o.rounds, o.duration, o.warmup, runtime.Version())
+	fmt.Fprintf(stdout, "server pid %d on %s (CPU %s, built with %s), harness CPU %s (%s), %d connections, %d rounds of %s per target after %s warm-up\n",
+		srv.cmd.Process.Pid, srv.addr, cpuName(o.serverCPU), serverGo, cpuName(o.loadCPU), runtime.Version(), o.connections, o.rounds, o.duration, o.warmup)
 	reqs := make([][]byte, len(o.targets))
 	for i, t := range o.targets {
 		if reqs[i], err = buildRequest(o.repo, srv.addr, t); err != nil {
@@ -280,3 +296,18 @@ func median(v []float64) float64 {
 }
 
 func ms(d time.Duration) float64 { return float64(d) / 1e6 }
+
+// pinnedToolchain returns the toolchain line of the go.mod at path ("" when
+// there is none).
+func pinnedToolchain(path string) (string, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return "", fmt.Errorf("reading the toolchain line: %w", err)
+	}
+	for _, line := range strings.Split(string(b), "\n") {
+		if f := strings.Fields(line); len(f) == 2 && f[0] == "toolchain" {
+			return f[1], nil
+		}
+	}
+	return "", nil
+}
