@@ -8,7 +8,6 @@ import (
 	"log/slog"
 	"net/http"
 	"strconv"
-	"strings"
 
 	"github.com/labstack/echo/v4"
 
@@ -242,28 +241,41 @@ func fromChem(ce *chem.Error) *Error {
 	return e
 }
 
-// Pointer builds an RFC 6901 JSON pointer from path elements.
+// Pointer builds an RFC 6901 JSON pointer from path elements ("~" and "/"
+// in a member name escaped as "~0" and "~1"). It runs for every warning of
+// every answer, so it appends into one buffer and allocates once.
 func Pointer(path ...any) string {
 	if len(path) == 0 {
 		return ""
 	}
-	var b strings.Builder
+	var stack [96]byte
+	b := stack[:0]
 	for _, p := range path {
-		b.WriteByte('/')
-		var s string
+		b = append(b, '/')
 		switch v := p.(type) {
 		case string:
-			s = v
+			b = appendPointerToken(b, v)
 		case int:
-			s = strconv.Itoa(v)
+			b = strconv.AppendInt(b, int64(v), 10)
 		default:
-			s = fmt.Sprint(v)
+			b = appendPointerToken(b, fmt.Sprint(v))
 		}
-		s = strings.ReplaceAll(s, "~", "~0")
-		s = strings.ReplaceAll(s, "/", "~1")
-		b.WriteString(s)
 	}
-	return b.String()
+	return string(b)
+}
+
+func appendPointerToken(b []byte, s string) []byte {
+	for i := 0; i < len(s); i++ {
+		switch c := s[i]; c {
+		case '~':
+			b = append(b, '~', '0')
+		case '/':
+			b = append(b, '~', '1')
+		default:
+			b = append(b, c)
+		}
+	}
+	return b
 }
 
 // ErrorHandler is the echo error handler: the one place that writes error

@@ -20,3 +20,13 @@ func TestParametersOf(t *testing.T) {
 		require.Equal(t, want, string(parametersOf([]byte(body))), body)
 	}
 }
+
+// TestPointerEscapes: RFC 6901 §3 escapes "~" as "~0" and "/" as "~1" in
+// each reference token; integers are array indices.
+func TestPointerEscapes(t *testing.T) {
+	require.Equal(t, "", Pointer())
+	require.Equal(t, "/profile/acids/12/acid", Pointer("profile", "acids", 12, "acid"))
+	require.Equal(t, "/a~1b/m~0n/~01", Pointer("a/b", "m~n", "~1"))
+	require.Equal(t, "/options/forecast/path_points", Pointer("options", "forecast", "path_points"))
+	require.Equal(t, "/x/-3/true", Pointer("x", -3, true))
+}

@@ -3,6 +3,7 @@ package melting
 import (
 	"math"
 	"slices"
+	"sync"
 
 	"lipidsvc/chem"
 )
@@ -62,13 +63,65 @@ type builder struct {
 	binSlots                     [][]int32 // per dense family: bin → 1 + index into bins
 	bins                         []poolBin
 	pooledMass, outsideMass      float64
+	sc                           *builderScratch
+}
+
+// builderScratch is a builder's working memory, recycled between fats: a
+// melting request builds one mixture from thousands of species, and these
+// lists were most of what it allocated.
+type builderScratch struct {
+	kept     []keptSpecies
+	bins     []poolBin
+	binSlots [][]int32
+	free     [][]int32 // zeroed slot arrays ready for reuse
+}
+
+var builderScratches = sync.Pool{New: func() any { return new(builderScratch) }}
+
+// maxRecycledSpecies bounds the kept-species list a scratch keeps (a
+// one-off fat with a hundred thousand species is left to the collector).
+const maxRecycledSpecies = 1 << 15
+
+// slotArray returns a zeroed array of poolBins slots.
+func (bd *builder) slotArray() []int32 {
+	if n := len(bd.sc.free); n > 0 {
+		s := bd.sc.free[n-1]
+		bd.sc.free = bd.sc.free[:n-1]
+		return s
+	}
+	return make([]int32, poolBins)
+}
+
+// release returns the builder's working memory; the builder is not used
+// after it.
+func (bd *builder) release() {
+	sc := bd.sc
+	for fam, slots := range bd.binSlots {
+		if slots != nil {
+			clear(slots)
+			sc.free = append(sc.free, slots)
+			bd.binSlots[fam] = nil
+		}
+	}
+	sc.binSlots = bd.binSlots[:0]
+	sc.bins = bd.bins[:0]
+	sc.kept = nil
+	if cap(bd.kept) <= maxRecycledSpecies {
+		sc.kept = bd.kept[:0]
+	}
+	bd.sc, bd.kept, bd.bins, bd.binSlots = nil, nil, nil, nil
+	builderScratches.Put(sc)
 }
 
 func (f *Fat) newBuilder(pr *prepared) *builder {
 	comp := f.composition
 	n := len(comp.Acids)
+	sc := builderScratches.Get().(*builderScratch)
 	bd := &builder{f: f, pr: pr, acidMass: make([]float64, n), famCode: make([]int, n),
-		floor: f.opt.Composition.PoolFloorMoleFraction, bins: make([]poolBin, 0, 256)}
+		floor: f.opt.Composition.PoolFloorMoleFraction, sc: sc, kept: sc.kept[:0], bins: sc.bins[:0]}
+	if cap(bd.bins) == 0 {
+		bd.bins = make([]poolBin, 0, 256)
+	}
 	if f.opt.Composition.NoPooling {
 		bd.floor = 0
 	}
@@ -93,7 +146,11 @@ func (f *Fat) newBuilder(pr *prepared) *builder {
 	}
 	bd.sn2MismatchS = 1000 * pr.k.SN2MismatchKJ / pr.thetaK
 	bd.outerMismatchS = 1000 * pr.k.OuterMismatchKJ / pr.thetaK
-	bd.binSlots = make([][]int32, 16*nb)
+	if need := 16 * nb; cap(sc.binSlots) >= need {
+		bd.binSlots = sc.binSlots[:need] // entries are nil (release)
+	} else {
+		bd.binSlots = make([][]int32, need)
+	}
 	f.main = make([]mainEntry, 0, f.opt.MainSpecies+1)
 	return bd
 }
@@ -187,7 +244,7 @@ func (bd *builder) add(op outerPart, j int, z float64) {
 	bi := min(int((tm-floorMeltingPointK)/poolBinK), poolBins-1)
 	slots := bd.binSlots[fam]
 	if slots == nil {
-		slots = make([]int32, poolBins)
+		slots = bd.slotArray()
 		bd.binSlots[fam] = slots
 	}
 	if slots[bi] == 0 {
@@ -207,7 +264,7 @@ func (bd *builder) add(op outerPart, j int, z float64) {
 // trans, band; in a family the kept species in the order added, then the
 // pooled bins in ascending order) and returns the mass of species with acids
 // outside the fit. The species themselves are not stored: only the largest
-// ones for the result.
+// ones for the result. It releases the builder's working memory.
 func (bd *builder) finish() (outsideMass float64) {
 	f := bd.f
 	shift := f.opt.Calibration.TemperatureShiftK
@@ -236,7 +293,9 @@ func (bd *builder) finish() (outsideMass float64) {
 	m.endFamilies()
 	f.mixture = m
 	f.pooledMassPercent = 100 * bd.pooledMass / f.totalMass
-	return bd.outsideMass
+	outsideMass = bd.outsideMass
+	bd.release()
+	return outsideMass
 }
 
 // build enumerates the species of the fat's positional pools (outer pairs

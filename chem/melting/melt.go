@@ -339,7 +339,8 @@ func (f *Fat) MeltContext(ctx context.Context) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := f.mixture.newWorkspace()
+	w := f.mixture.resetWorkspace(workspaces.Get().(*workspace))
+	defer workspaces.Put(w)
 	known := make([]curvePoint, len(all))
 	sfcAt := make(map[float64]float64, len(all))
 	for i, t := range all {

@@ -4,6 +4,7 @@ import (
 	"cmp"
 	"math"
 	"slices"
+	"sync"
 
 	"lipidsvc/chem"
 )
@@ -199,15 +200,42 @@ type workspace struct {
 	lastT, prevT, prevL float64
 	// solves counts the calls of Mixture.sfc with this workspace.
 	solves int
+	// buf backs s, r, phi0, t, gf and cf.
+	buf []float64
 }
 
 func (m *Mixture) newWorkspace() *workspace {
+	return m.resetWorkspace(&workspace{})
+}
+
+// resetWorkspace readies w for m, reusing its arrays where they are large
+// enough: a workspace starts zeroed whatever it solved before.
+func (m *Mixture) resetWorkspace(w *workspace) *workspace {
 	n := len(m.z)
 	nf := len(m.famOff) - 1
-	return &workspace{s: make([]float64, n), r: make([]float64, n), cand: make([]breakpoint, 0, n),
-		act: make([]int32, 0, nf), phi0: make([]float64, nf), t: make([]float64, nf),
-		gf: make([]float64, nf), cf: make([]float64, nf)}
+	need := 2*n + 4*nf
+	buf := w.buf
+	if cap(buf) < need {
+		buf = make([]float64, need)
+	} else {
+		buf = buf[:need]
+		clear(buf)
+	}
+	cand, act := w.cand[:0], w.act[:0]
+	if cap(cand) < n {
+		cand = make([]breakpoint, 0, n)
+	}
+	if cap(act) < nf {
+		act = make([]int32, 0, nf)
+	}
+	*w = workspace{buf: buf, s: buf[:n:n], r: buf[n : 2*n : 2*n], cand: cand, act: act,
+		phi0: buf[2*n : 2*n+nf : 2*n+nf], t: buf[2*n+nf : 2*n+2*nf : 2*n+2*nf],
+		gf: buf[2*n+2*nf : 2*n+3*nf : 2*n+3*nf], cf: buf[2*n+3*nf : need : need]}
+	return w
 }
+
+// workspaces recycles the workspaces of melting curves.
+var workspaces = sync.Pool{New: func() any { return new(workspace) }}
 
 // SolidFatContent is the solid fat content (mass %) at temperatureC:
 // 100·Σ solid_i·M_i / Σ z_i·M_i (the melting package documentation). maxIterations caps the
