@@ -264,7 +264,6 @@ func (f *fitter) predict(c Catalyst) ([][]float64, []float64, error) {
 	f.net.setCatalyst(c)
 	pred := make([][]float64, len(f.obsIV))
 	taus := make([]float64, len(f.obsIV))
-	x := make([]float64, len(f.tr.x0))
 	for j, iv := range f.obsIV {
 		tau, err := f.tr.tauAt(f.ctx, iv, f.lastTau[j])
 		if err != nil {
@@ -272,8 +271,8 @@ func (f *fitter) predict(c Catalyst) ([][]float64, []float64, error) {
 		}
 		taus[j] = tau
 		f.lastTau[j] = tau
-		f.net.evolve(f.tr.x0, tau, x)
-		p := chem.FromMoleFractions(f.net.acids, x, f.basis)
+		// The root finder leaves the composition at the root in tr.x.
+		p := chem.FromMoleFractions(f.net.acids, f.tr.x, f.basis)
 		g := make([]float64, len(f.groups))
 		for i, comp := range p.Components {
 			g[f.acidGroup[i]] += comp.Percent

@@ -103,6 +103,9 @@ type network struct {
 	// untracked lists feed acids whose trans isomers the model cannot
 	// express (no trans entry in the catalogue), for a warning.
 	untracked []string
+	// generation counts setCatalyst calls; a series basis is valid for
+	// the generation it was built in.
+	generation int
 }
 
 // newNetwork builds the reaction scheme for the acids of a feed (and of an
@@ -264,6 +267,7 @@ func (net *network) setCatalyst(c Catalyst) {
 	for _, b := range net.blocks {
 		b.uniformise()
 	}
+	net.generation++
 }
 
 // evolve writes into x the mole fractions at path variable tau, starting
@@ -305,6 +309,96 @@ func (net *network) evolve(x0 []float64, tau float64, x []float64) {
 			b.y[r] = x0[i]
 		}
 		b.propagate(tau)
+		for r, i := range b.idx {
+			x[i] = b.y[r]
+		}
+	}
+}
+
+// series holds, for one starting vector y, the vectors P^k·y of every
+// block, built as far as evaluations need them. Evaluations from the same
+// start then sum the remainder's series from stored vectors, with no
+// matrix-vector product: exp(A·r/s) and the binary powers commute, so
+// x(τ) = E_m·(e^{−r} Σ_k r^k/k!·P^k·y) with τ = (m + r)/s.
+type series struct {
+	net        *network
+	generation int
+	start      []float64   // y in network coordinates
+	terms      [][]float64 // per block: the P^k·y, concatenated (k·n … k·n+n)
+}
+
+// newSeries prepares the series of start (kept, not copied).
+func (net *network) newSeries(start []float64) *series {
+	sr := &series{net: net, terms: make([][]float64, len(net.blocks))}
+	for i, b := range net.blocks {
+		sr.terms[i] = make([]float64, 0, (unifTerms+1)*b.n)
+	}
+	sr.reset(start)
+	return sr
+}
+
+// reset makes start (kept, not copied) the series' starting vector,
+// keeping its storage.
+func (sr *series) reset(start []float64) {
+	sr.start, sr.generation = start, -1
+}
+
+// evolve writes into x the mole fractions at path variable tau from the
+// series' start: the same result as network.evolve(start, tau, x).
+func (sr *series) evolve(tau float64, x []float64) {
+	net := sr.net
+	copy(x, sr.start)
+	if tau == 0 {
+		return
+	}
+	if sr.generation != net.generation {
+		// A new catalyst: the stored powers of P are of the old one.
+		for i := range sr.terms {
+			sr.terms[i] = sr.terms[i][:0]
+		}
+		sr.generation = net.generation
+	}
+	for bi, b := range net.blocks {
+		if b.unif == 0 {
+			continue
+		}
+		n := b.n
+		t := sr.terms[bi]
+		if len(t) == 0 {
+			for _, i := range b.idx {
+				t = append(t, sr.start[i])
+			}
+		}
+		q := math.Min(tau*b.unif, math.Ldexp(1, maxPowerBits))
+		whole := math.Floor(q)
+		r := q - whole
+		copy(b.y, t[:n])
+		coef := 1.0
+		for k := 1; k <= unifTerms && r > 0; k++ {
+			coef *= r / float64(k)
+			if len(t) < (k+1)*n {
+				t = t[:(k+1)*n] // capacity for every term (newSeries)
+				mulVec(t[k*n:], b.jump, t[(k-1)*n:k*n], n)
+			}
+			for i, v := range t[k*n : (k+1)*n] {
+				b.y[i] += coef * v
+			}
+			if coef < 1e-18 {
+				break
+			}
+		}
+		sr.terms[bi] = t
+		if r > 0 {
+			e := math.Exp(-r)
+			for i := range b.y {
+				b.y[i] *= e
+			}
+		}
+		for k, m := 0, uint64(whole); m != 0; k, m = k+1, m>>1 {
+			if m&1 == 1 {
+				b.apply(b.power(k))
+			}
+		}
 		for r, i := range b.idx {
 			x[i] = b.y[r]
 		}

@@ -19,6 +19,9 @@ type trajectory struct {
 	// keeps τ − τa small, so few binary powers are applied.
 	anchorTau float64
 	anchorX   []float64
+	// fromStart and fromAnchor are the series of x0 and of the anchor,
+	// reused by every evaluation from them.
+	fromStart, fromAnchor *series
 	// lastTau, lastIV and lastSlope are the most recent evaluation, which
 	// the path uses for its next start.
 	lastTau, lastIV, lastSlope float64
@@ -34,6 +37,8 @@ type trajectory struct {
 
 func newTrajectory(net *network, x0 []float64) *trajectory {
 	tr := &trajectory{net: net, x0: x0, x: make([]float64, len(x0)), anchorX: x0}
+	tr.fromStart = net.newSeries(x0)
+	tr.fromAnchor = net.newSeries(x0)
 	tr.feedIV = net.iodineValue(x0)
 	return tr
 }
@@ -42,7 +47,8 @@ func newTrajectory(net *network, x0 []float64) *trajectory {
 // copied.
 func (tr *trajectory) anchor(tau float64, x []float64) {
 	tr.anchorTau = tau
-	tr.anchorX = append([]float64(nil), x...)
+	tr.anchorX = append(tr.anchorX[:0:0], x...)
+	tr.fromAnchor.reset(tr.anchorX)
 }
 
 // ivAt returns the iodine value at path variable tau and its slope
@@ -50,9 +56,9 @@ func (tr *trajectory) anchor(tau float64, x []float64) {
 func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
 	tr.evals++
 	if tau >= tr.anchorTau {
-		tr.net.evolve(tr.anchorX, tau-tr.anchorTau, tr.x)
+		tr.fromAnchor.evolve(tau-tr.anchorTau, tr.x)
 	} else {
-		tr.net.evolve(tr.x0, tau, tr.x)
+		tr.fromStart.evolve(tau, tr.x)
 	}
 	iv, slope = tr.net.iodineValueSlope(tr.x)
 	tr.lastTau, tr.lastIV, tr.lastSlope = tau, iv, slope
