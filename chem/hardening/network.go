@@ -85,7 +85,7 @@ type block struct {
 	// powers[k] is exp(A·2^k/s), row-major, built on demand by squaring.
 	powers [][]float64
 	// scratch vectors of length n
-	y, term, next []float64
+	y, next []float64
 }
 
 // network is the reaction scheme built for one feed: which acids take part
@@ -238,7 +238,7 @@ func (net *network) buildBlocks() {
 		b.n = n
 		b.rates = make([]float64, n*n)
 		b.jump = make([]float64, n*n)
-		b.y, b.term, b.next = make([]float64, n), make([]float64, n), make([]float64, n)
+		b.y, b.next = make([]float64, n), make([]float64, n)
 		net.blocks = append(net.blocks, b)
 	}
 }
@@ -296,23 +296,15 @@ func (net *network) setCatalyst(c Catalyst) {
 // squaring", Moler & Van Loan, SIAM Rev. 45:3, 2003) and reused by every
 // evaluation: τ = (m + r)/s with integer m and 0 ≤ r < 1 costs one
 // matrix-vector product per set bit of m and at most twenty for the
-// remainder, against a full matrix exponential per evaluation before.
-// Where sτ exceeds 2^62 the block is at its end state to machine precision
+// remainder (none when the start's series is already stored), where a
+// general matrix exponential would cost several matrix products and a
+// linear solve per evaluation. Where sτ exceeds 2^62 the block is at its end state to machine precision
 // and τ is clamped there.
+//
+// Evaluations that share a start keep its series (see series); a one-off
+// evaluation builds it for the occasion.
 func (net *network) evolve(x0 []float64, tau float64, x []float64) {
-	copy(x, x0)
-	if tau == 0 {
-		return
-	}
-	for _, b := range net.blocks {
-		for r, i := range b.idx {
-			b.y[r] = x0[i]
-		}
-		b.propagate(tau)
-		for r, i := range b.idx {
-			x[i] = b.y[r]
-		}
-	}
+	net.newSeries(x0).evolve(tau, x)
 }
 
 // series holds, for one starting vector y, the vectors P^k·y of every
@@ -433,46 +425,6 @@ const unifTerms = 20
 
 // maxPowerBits bounds the binary powers kept (sτ up to 2^62).
 const maxPowerBits = 62
-
-// propagate replaces b.y by exp(A·tau)·b.y.
-func (b *block) propagate(tau float64) {
-	if b.unif == 0 {
-		return // nothing in the block reacts
-	}
-	q := math.Min(tau*b.unif, math.Ldexp(1, maxPowerBits))
-	whole := math.Floor(q)
-	m := uint64(whole)
-	for k := 0; m != 0; k++ {
-		if m&1 == 1 {
-			b.apply(b.power(k))
-		}
-		m >>= 1
-	}
-	if r := q - whole; r > 0 {
-		b.unitStep(r)
-	}
-}
-
-// unitStep replaces b.y by exp(A·r/s)·b.y for 0 < r < 1 by the series.
-func (b *block) unitStep(r float64) {
-	copy(b.term, b.y)
-	coef := 1.0
-	for k := 1; k <= unifTerms; k++ {
-		mulVec(b.next, b.jump, b.term, b.n)
-		coef *= r / float64(k)
-		for i, v := range b.next {
-			b.term[i] = v * r / float64(k)
-			b.y[i] += b.term[i]
-		}
-		if coef < 1e-18 {
-			break // the rest of the tail is below rounding
-		}
-	}
-	e := math.Exp(-r)
-	for i := range b.y {
-		b.y[i] *= e
-	}
-}
 
 // apply replaces b.y by m·b.y.
 func (b *block) apply(m []float64) {

@@ -110,29 +110,38 @@ func TestDefectiveChain(t *testing.T) {
 			0, k, -k, 0,
 			0, 0, k, 0,
 		}
-		b.uniformise()
+		net := oneBlock(b)
+		x := make([]float64, 4)
 		for _, tau := range []float64{1e-6, 0.01, 0.3, 1, 2.5, 7, 40} {
-			copy(b.y, []float64{1, 0, 0, 0})
-			b.propagate(tau)
+			net.evolve([]float64{1, 0, 0, 0}, tau, x)
 			m := k * tau
 			e := math.Exp(-m)
 			want := []float64{e, m * e, m * m / 2 * e, 1 - e - m*e - m*m/2*e}
 			for i := range want {
-				require.InDelta(t, want[i], b.y[i], 1e-13, "k=%g τ=%g species %d", k, tau, i)
+				require.InDelta(t, want[i], x[i], 1e-13, "k=%g τ=%g species %d", k, tau, i)
 			}
 		}
 	}
 	// Nothing reacts: the identity.
-	b := testBlock(2)
-	b.uniformise()
-	copy(b.y, []float64{0.3, 0.7})
-	b.propagate(5)
-	require.Equal(t, []float64{0.3, 0.7}, b.y)
+	net := oneBlock(testBlock(2))
+	x := make([]float64, 2)
+	net.evolve([]float64{0.3, 0.7}, 5, x)
+	require.Equal(t, []float64{0.3, 0.7}, x)
 }
 
 func testBlock(n int) *block {
-	return &block{n: n, rates: make([]float64, n*n), jump: make([]float64, n*n),
-		y: make([]float64, n), term: make([]float64, n), next: make([]float64, n)}
+	b := &block{n: n, rates: make([]float64, n*n), jump: make([]float64, n*n),
+		y: make([]float64, n), next: make([]float64, n)}
+	for i := range n {
+		b.idx = append(b.idx, i)
+	}
+	return b
+}
+
+// oneBlock is a network of the one block b (rates set), uniformised.
+func oneBlock(b *block) *network {
+	b.uniformise()
+	return &network{blocks: []*block{b}}
 }
 
 // TestPathEvaluations: the path's roots start from the Hermite
