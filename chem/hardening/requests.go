@@ -307,10 +307,13 @@ type FitInput struct {
 }
 
 // MaxFitWork caps the work of one fit: iterations × observations × (free
-// parameters + 1), the forecasts a fit may run (each Gauss–Newton step
-// forecasts every observation once for the residuals and once more per
-// free parameter for the Jacobian). At about 0.1 ms a forecast on a
-// server core the cap is a few seconds, inside the request time limit.
+// parameters + 1), a measure of the forecasts a fit may run (each
+// Gauss–Newton step forecasts every observation for the residuals and
+// again for each parameter's column of the Jacobian). One observation's
+// forecast takes about 5 µs on a server core (BenchmarkFit); central
+// differences and the restarts from the presets can multiply the count by
+// up to about twelve, so a fit at the cap takes at most a second or two,
+// well inside the request time limit.
 const MaxFitWork = 25000
 
 // fitWorkCap refuses a fit that could run past its share of the service
