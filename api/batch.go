@@ -465,22 +465,30 @@ type batchWriter interface {
 	end(s BatchSummary) error
 }
 
+// DefaultBatchLimits are the batch limits a zero field stands for (the
+// service's configuration starts from them too).
+func DefaultBatchLimits() BatchLimits {
+	return BatchLimits{MaxSamples: 10000, BodyLimitBytes: 64 << 20, LineLimitBytes: 1 << 20,
+		Timeout: 30 * time.Minute, SampleTimeout: 10 * time.Second}
+}
+
 // handleBatch is POST /v1/batch.
 func (d *Deps) handleBatch() echo.HandlerFunc {
+	def := DefaultBatchLimits()
 	if d.Batch.Timeout <= 0 {
-		d.Batch.Timeout = 30 * time.Minute
+		d.Batch.Timeout = def.Timeout
 	}
 	if d.Batch.SampleTimeout <= 0 {
-		d.Batch.SampleTimeout = 10 * time.Second
+		d.Batch.SampleTimeout = def.SampleTimeout
 	}
 	if d.Batch.MaxSamples <= 0 {
-		d.Batch.MaxSamples = 10000
+		d.Batch.MaxSamples = def.MaxSamples
 	}
 	if d.Batch.BodyLimitBytes <= 0 {
-		d.Batch.BodyLimitBytes = 64 << 20
+		d.Batch.BodyLimitBytes = def.BodyLimitBytes
 	}
 	if d.Batch.LineLimitBytes <= 0 {
-		d.Batch.LineLimitBytes = 1 << 20
+		d.Batch.LineLimitBytes = def.LineLimitBytes
 	}
 	return func(c echo.Context) error {
 		req := c.Request()

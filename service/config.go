@@ -95,9 +95,9 @@ func DefaultConfig() Config {
 		DrainDelay:        5 * time.Second,
 		ShutdownTimeout:   15 * time.Second,
 
-		BatchMaxSamples:     10000,
-		BatchBodyLimitBytes: 64 << 20,
-		BatchTimeout:        30 * time.Minute,
+		BatchMaxSamples:     api.DefaultBatchLimits().MaxSamples,
+		BatchBodyLimitBytes: api.DefaultBatchLimits().BodyLimitBytes,
+		BatchTimeout:        api.DefaultBatchLimits().Timeout,
 
 		InFlight:       DefaultInFlightLimits(),
 		MaxBodyReads:   4 * runtime.GOMAXPROCS(0),
