@@ -186,6 +186,10 @@ const (
 	// WarnSlipUndefined: the SFC never reaches the slip threshold in the
 	// searched range, so no slip melting point is reported.
 	WarnSlipUndefined = "slip_point_undefined"
+	// WarnLiquidOil: the slip melting point lies below LiquidOilSlipC, so
+	// the fat is an oil, liquid at room temperature, for which a slip
+	// melting point means little.
+	WarnLiquidOil = "liquid_oil"
 	// WarnCalibrationLimit: a calibrated parameter sits at its allowed limit.
 	WarnCalibrationLimit = "calibration_at_limit"
 )

@@ -303,6 +303,11 @@ type Result struct {
 	Warnings    []chem.Warning
 }
 
+// LiquidOilSlipC is the slip melting point, °C, below which a fat counts
+// as an oil, liquid at room temperature (20 °C; common practice, no
+// source), and gets WarnLiquidOil.
+const LiquidOilSlipC = 20.0
+
 // MeltProfile computes the melting behaviour of a fat from its profile. Errors are
 // *chem.Error values: KindInvalid for bad options, KindNoConvergence if an
 // iterative solver hits its cap.
@@ -384,6 +389,12 @@ func (f *Fat) MeltContext(ctx context.Context) (*Result, error) {
 	var uw []chem.Warning
 	r.Uncertainty, uw = f.Uncertainty()
 	r.Warnings = append(r.Warnings, uw...)
+	if ok && r.SlipMeltingPointC < LiquidOilSlipC {
+		r.Warnings = append(r.Warnings, chem.Warning{Code: WarnLiquidOil, Message: fmt.Sprintf(
+			"the slip melting point, %.1f °C, is below %g °C: the fat is an oil, liquid at room temperature, and the value is "+
+				"only where the model's last solids fall below the slip threshold; oils are usually characterised by their "+
+				"cloud point (AOCS Cc 6-25) instead", r.SlipMeltingPointC, LiquidOilSlipC)})
+	}
 	if !ok {
 		r.Warnings = append(r.Warnings, chem.Warning{Code: WarnSlipUndefined, Message: fmt.Sprintf(
 			"the solid fat content stays below the slip threshold of %.3g %% down to %g °C; no slip melting point is reported",

@@ -806,3 +806,29 @@ func TestOutsideFitNamesOnlyPresentAcids(t *testing.T) {
 	require.Contains(t, msg, "20:1")
 	require.NotContains(t, msg, "22:6")
 }
+
+// TestLiquidOilWarned: a seed oil's slip melting point (a few °C in the
+// model) comes with the liquid-oil warning; palm oil's (in the thirties)
+// does not.
+func TestLiquidOilWarned(t *testing.T) {
+	codes := func(r *Result) []string {
+		var c []string
+		for _, w := range r.Warnings {
+			c = append(c, w.Code)
+		}
+		return c
+	}
+	soy, err := MeltProfile(soyLike(t), Options{Composition: CompositionOptions{SN2: SN2SeedOil}})
+	require.NoError(t, err)
+	require.True(t, soy.SlipMeltingPointDefined)
+	require.Less(t, soy.SlipMeltingPointC, LiquidOilSlipC)
+	require.Contains(t, codes(soy), WarnLiquidOil)
+
+	cat := chem.NewCatalogue()
+	p, err := cat.ReadProfile(palmInput)
+	require.NoError(t, err)
+	palm, err := MeltProfile(p, Options{Composition: CompositionOptions{SN2: SN2Palm}})
+	require.NoError(t, err)
+	require.Greater(t, palm.SlipMeltingPointC, LiquidOilSlipC)
+	require.NotContains(t, codes(palm), WarnLiquidOil)
+}
