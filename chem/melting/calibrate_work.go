@@ -6,11 +6,17 @@ import (
 	"lipidsvc/chem"
 )
 
-// calibrationSolvesPerFit bounds the SFC evaluations one fit makes per
-// measurement: the 0.25 K scan over ±MaxCalibrationShiftK (121 shifts),
-// the golden-section refinement to 1e-6 K (about 30) and the error
-// summaries before and after (a few).
-const calibrationSolvesPerFit = 160
+// Per-measurement solve counts behind CalibrationWork. An SFC point is
+// solved once at each of the scan's scanShifts shifts (cached per fat and
+// shared by all fits) and about refineSolvesPerFit times in each fit's
+// golden-section refinement to 1e-6 K and error summaries. A slip melting
+// point costs a slip-point search (tens of solves) in each error summary
+// and, without SFC data, in each step of the slip fit's root search.
+const (
+	refineSolvesPerFit = 40
+	slipSolvesFixed    = 160
+	slipSolvesPerFit   = 60
+)
 
 // MaxCalibrationWork caps the work of one calibration, in component-solves
 // (one equilibrium solution of one fat times its number of components).
@@ -20,25 +26,26 @@ const calibrationSolvesPerFit = 160
 const MaxCalibrationWork = 2e8
 
 // CalibrationWork is the most work CalibrateFats may do for the library,
-// in component-solves: calibrationSolvesPerFit × F × Σ_i n_i·(P_i + s_i)
-// for F fats with n_i components, P_i SFC points and s_i = 1 for a
-// measured slip melting point (the fit on all fats and, for F ≥ 2, the F
+// in component-solves: Σ_i n_i·(P_i·(scanShifts + refineSolvesPerFit·F) +
+// s_i·(slipSolvesFixed + slipSolvesPerFit·F)) for F fats with n_i
+// components, P_i SFC points and s_i = 1 for a measured slip melting
+// point. F counts the fits: the fit on all fats and, for F ≥ 2, the F
 // leave-one-out fits, each on all fats but one, together see every
-// measurement F times). The scan and the refinement are fixed, so the bound
-// holds for SFC data; a library with only slip melting points usually takes
-// well under it (the slip search takes 10 to 20 steps), and any calibration
-// also stops when its context ends.
+// measurement F times. TestCalibrationWorkBound holds the counted work
+// within it (and above half of it with SFC data) for every solid model;
+// any calibration also stops when its context ends.
 func CalibrationWork(fats []LibraryFat) float64 {
+	f := float64(max(1, len(fats)))
 	var w float64
 	for _, lf := range fats {
 		m := lf.Measurements
-		per := float64(len(m.SFC))
+		per := float64(len(m.SFC)) * (float64(scanShifts) + refineSolvesPerFit*f)
 		if m.HasSlipMeltingPoint {
-			per++
+			per += slipSolvesFixed + slipSolvesPerFit*f
 		}
 		w += float64(lf.Fat.mixture.Len()) * per
 	}
-	return calibrationSolvesPerFit * float64(max(1, len(fats))) * w
+	return w
 }
 
 // calibrationWorkCap refuses a calibration that could run past its share

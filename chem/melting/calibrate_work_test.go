@@ -48,21 +48,21 @@ func workLibrary(t *testing.T, model SolidModel, f, p int, slip bool) []LibraryF
 
 // TestCalibrationWorkBound: the work a calibration does, counted solve by
 // solve, stays within CalibrationWork for every solid model and library
-// shape, and for SFC data is most of it (the bound is not loose by orders
-// of magnitude, so the cap refuses only what would really be long).
+// shape, and for SFC data is at least half of it (the bound is not loose by
+// orders of magnitude, so the cap refuses only what would really be long).
 func TestCalibrationWorkBound(t *testing.T) {
 	for _, model := range []SolidModel{SolidSolutionFamilies, MultiplePureSolids, IdealSolidSolution} {
 		for _, c := range []struct {
 			f, p int
 			slip bool
-		}{{1, 5, false}, {1, 0, true}, {1, 5, true}, {4, 5, true}, {4, 0, true}, {6, 8, false}, {3, 20, true}} {
+		}{{1, 5, false}, {1, 0, true}, {1, 5, true}, {4, 5, true}, {4, 0, true}, {6, 8, false}, {3, 20, true}, {12, 3, true}, {12, 0, true}} {
 			lib := workLibrary(t, model, c.f, c.p, c.slip)
 			rep, err := CalibrateFats(context.Background(), lib)
 			require.NoError(t, err)
 			bound := CalibrationWork(lib)
 			require.LessOrEqual(t, rep.work, bound, "%v %+v", model, c)
 			if c.p > 0 {
-				require.Greater(t, rep.work, 0.75*bound, "%v %+v", model, c)
+				require.Greater(t, rep.work, 0.5*bound, "%v %+v", model, c)
 			}
 		}
 	}
@@ -72,7 +72,7 @@ func TestCalibrationWorkBound(t *testing.T) {
 // at once with the distinct kind, pointing at the fats (or, for one fat,
 // at its SFC points).
 func TestCalibrationWorkCap(t *testing.T) {
-	lib := workLibrary(t, MultiplePureSolids, 20, 100, true)
+	lib := workLibrary(t, MultiplePureSolids, MaxCalibrationFats, 100, true)
 	require.Greater(t, CalibrationWork(lib), float64(MaxCalibrationWork))
 	// A context already ended shows the refusal comes before any work:
 	// the calibrator would answer with the context's error instead.

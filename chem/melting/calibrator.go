@@ -16,9 +16,20 @@ type calibrator struct {
 	ctx  context.Context
 	fats []calFat
 	// work counts component-solves (one equilibrium solution times the
-	// mixture's components), the unit of calibrationWork.
+	// mixture's components), the unit of CalibrationWork.
 	work float64
+	// grid[i] caches fat i's SFC error sum at each shift of the scan
+	// (NaN until computed): a fat's errors at a shift do not depend on
+	// the other fats, so the leave-one-out fits sum the scan from it.
+	grid [][]float64
 }
+
+// scanShifts is the number of shifts of the 0.25 K scan over
+// ±MaxCalibrationShiftK.
+const scanShifts = int(2*MaxCalibrationShiftK/0.25) + 1
+
+// scanShift is the k-th shift of the scan, K.
+func scanShift(k int) float64 { return -MaxCalibrationShiftK + 0.25*float64(k) }
 
 // solve is fat cf's SFC at tK with shift s, counted.
 func (c *calibrator) solve(cf calFat, tK, s float64) (float64, error) {
@@ -72,25 +83,64 @@ func (c *calibrator) hasData(only []int) bool {
 func (c *calibrator) sse(s float64, only []int) (float64, error) {
 	var sum float64
 	for _, i := range c.indices(only) {
-		cf := c.fats[i]
-		for _, pt := range cf.m.SFC {
-			v, err := c.solve(cf, pt.TemperatureC+zeroCelsiusK, s)
-			if err != nil {
+		v, err := c.fatSSE(i, s)
+		if err != nil {
+			return 0, err
+		}
+		sum += v
+	}
+	return sum, nil
+}
+
+// fatSSE is fat i's sum of squared SFC errors at shift s.
+func (c *calibrator) fatSSE(i int, s float64) (float64, error) {
+	cf := c.fats[i]
+	var sum float64
+	for _, pt := range cf.m.SFC {
+		v, err := c.solve(cf, pt.TemperatureC+zeroCelsiusK, s)
+		if err != nil {
+			return 0, err
+		}
+		sum += (v - pt.SolidFatPercent) * (v - pt.SolidFatPercent)
+	}
+	return sum, nil
+}
+
+// scanSSE is the sum of squared SFC errors at the k-th shift of the scan,
+// from the per-fat cache.
+func (c *calibrator) scanSSE(k int, only []int) (float64, error) {
+	if c.grid == nil {
+		c.grid = make([][]float64, len(c.fats))
+	}
+	var sum float64
+	for _, i := range c.indices(only) {
+		if c.grid[i] == nil {
+			c.grid[i] = make([]float64, scanShifts)
+			for j := range c.grid[i] {
+				c.grid[i][j] = math.NaN()
+			}
+		}
+		v := c.grid[i][k]
+		if math.IsNaN(v) {
+			var err error
+			if v, err = c.fatSSE(i, scanShift(k)); err != nil {
 				return 0, err
 			}
-			sum += (v - pt.SolidFatPercent) * (v - pt.SolidFatPercent)
+			c.grid[i][k] = v
 		}
+		sum += v
 	}
 	return sum, nil
 }
 
 func (c *calibrator) fitShiftToSFC(only []int) (float64, error) {
 	best, bestV := 0.0, math.Inf(1)
-	for s := -MaxCalibrationShiftK; s <= MaxCalibrationShiftK+1e-9; s += 0.25 {
+	for k := 0; k < scanShifts; k++ {
 		if err := c.ctx.Err(); err != nil {
 			return 0, err
 		}
-		v, err := c.sse(s, only)
+		s := scanShift(k)
+		v, err := c.scanSSE(k, only)
 		if err != nil {
 			return 0, err
 		}
