@@ -61,8 +61,8 @@ func parametersOf(body []byte) json.RawMessage {
 		if ke < 0 {
 			return json.RawMessage("{}")
 		}
-		var key string
-		if json.Unmarshal(body[ks:ke], &key) != nil {
+		key, ok := plainKey(body[ks:ke])
+		if !ok && json.Unmarshal(body[ks:ke], &key) != nil {
 			return json.RawMessage("{}")
 		}
 		i = skipWS(body, ke)
@@ -94,6 +94,21 @@ func parametersOf(body []byte) json.RawMessage {
 	}
 	b.WriteByte('}')
 	return b.Bytes()
+}
+
+// plainKey returns a quoted member name of plain ASCII without escapes as
+// it stands (the usual case, read without a decoder); ok is false
+// otherwise, and the decoder reads it.
+func plainKey(q []byte) (string, bool) {
+	if len(q) < 2 || q[0] != '"' || q[len(q)-1] != '"' {
+		return "", false
+	}
+	for _, c := range q[1 : len(q)-1] {
+		if c == '\\' || c < 0x20 || c >= 0x80 {
+			return "", false
+		}
+	}
+	return string(q[1 : len(q)-1]), true
 }
 
 func skipWS(b []byte, i int) int {

@@ -16,6 +16,8 @@ func TestParametersOf(t *testing.T) {
 		`[1,2]`:          `{}`,
 		`{"a":[1,{"b":"]"}],"c":true,"d":null,"e":-1.5e3}`: `{"a":[1,{"b":"]"}],"c":true,"d":null,"e":-1.5e3}`,
 		`{"a":`: `{}`,
+		// Escaped names are decoded (an escaped data member is still data).
+		`{"pro\u0066ile":{"acids":[]},"m\u00e9thode":1,"x\"y":2}`: `{"méthode":1,"x\"y":2}`,
 	} {
 		require.Equal(t, want, string(parametersOf([]byte(body))), body)
 	}
