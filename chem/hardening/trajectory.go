@@ -96,7 +96,9 @@ func (tr *trajectory) nextRoot(ctx context.Context, target, tauEnd, ivEnd float6
 }
 
 // solve finds τ in (lo, hi) with IV(τ) = target, to within ivTolerance,
-// starting from start. On success tr.x holds the composition at the root. The caller guarantees IV(lo) > target and, unless
+// starting from start. On success tr.x holds the composition at the root:
+// the finder runs with no x tolerance, so every successful exit is at the
+// point it evaluated last (the path and the fit rely on this). The caller guarantees IV(lo) > target and, unless
 // hi is +Inf, IV(hi) < target.
 //
 // Method: the shared bracketed root finder (chem/internal/roots), which

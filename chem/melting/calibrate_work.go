@@ -15,7 +15,7 @@ import (
 const (
 	refineSolvesPerFit = 40
 	slipSolvesFixed    = 160
-	slipSolvesPerFit   = 60
+	slipSolvesPerFit   = 80
 )
 
 // MaxCalibrationWork caps the work of one calibration, in component-solves

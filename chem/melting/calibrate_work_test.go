@@ -55,7 +55,7 @@ func TestCalibrationWorkBound(t *testing.T) {
 		for _, c := range []struct {
 			f, p int
 			slip bool
-		}{{1, 5, false}, {1, 0, true}, {1, 5, true}, {4, 5, true}, {4, 0, true}, {6, 8, false}, {3, 20, true}, {12, 3, true}, {12, 0, true}} {
+		}{{1, 5, false}, {1, 0, true}, {1, 5, true}, {4, 5, true}, {4, 0, true}, {6, 8, false}, {3, 20, true}, {12, 3, true}, {12, 0, true}, {MaxCalibrationFats, 0, true}} {
 			lib := workLibrary(t, model, c.f, c.p, c.slip)
 			rep, err := CalibrateFats(context.Background(), lib)
 			require.NoError(t, err)

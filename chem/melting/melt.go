@@ -345,7 +345,7 @@ func (f *Fat) MeltContext(ctx context.Context) (*Result, error) {
 		return nil, err
 	}
 	w := f.mixture.resetWorkspace(workspaces.Get().(*workspace))
-	defer workspaces.Put(w)
+	defer recycleWorkspace(w)
 	known := make([]curvePoint, len(all))
 	sfcAt := make(map[float64]float64, len(all))
 	for i, t := range all {

@@ -237,6 +237,17 @@ func (m *Mixture) resetWorkspace(w *workspace) *workspace {
 // workspaces recycles the workspaces of melting curves.
 var workspaces = sync.Pool{New: func() any { return new(workspace) }}
 
+// maxRecycledComponents bounds the workspaces kept for reuse: one of a fat
+// solved without pooling (a hundred thousand species) is left to the
+// collector.
+const maxRecycledComponents = 1 << 15
+
+func recycleWorkspace(w *workspace) {
+	if cap(w.buf) <= 6*maxRecycledComponents && cap(w.cand) <= maxRecycledComponents {
+		workspaces.Put(w)
+	}
+}
+
 // SolidFatContent is the solid fat content (mass %) at temperatureC:
 // 100·Σ solid_i·M_i / Σ z_i·M_i (the melting package documentation). maxIterations caps the
 // Rachford–Rice iteration of the ideal solid solution (≤ 0 means
