@@ -21,6 +21,9 @@ type Catalogue struct {
 	byName map[string]*FattyAcid
 	// groups lists the entries per "C:D" (and hydroxy flag) shorthand.
 	groups map[groupKey][]*FattyAcid
+	// chains lists the entries other than hydroxy acids per (carbons,
+	// double bonds), branched ones included, in catalogue order.
+	chains map[[2]int][]*FattyAcid
 	// names[i] are the normalised names of acids[i], for suggestions.
 	names [][]string
 	// labels memoises successful label readings, keyed by the label as
@@ -171,6 +174,7 @@ func NewCatalogue() *Catalogue {
 		byID:   make(map[string]*FattyAcid),
 		byName: make(map[string]*FattyAcid),
 		groups: make(map[groupKey][]*FattyAcid),
+		chains: make(map[[2]int][]*FattyAcid),
 	}
 	for _, def := range builtinAcids {
 		a, err := def.build()
@@ -185,6 +189,10 @@ func NewCatalogue() *Catalogue {
 		c.byID[strings.ToLower(a.ID)] = a
 		k := groupKey{a.Carbons, a.DoubleBondCount, a.HydroxyPosition > 0, a.Branch}
 		c.groups[k] = append(c.groups[k], a)
+		if a.HydroxyPosition == 0 {
+			ck := [2]int{a.Carbons, a.DoubleBondCount}
+			c.chains[ck] = append(c.chains[ck], a)
+		}
 		for _, n := range a.allNames() {
 			if other, dup := c.byName[n]; dup && other != a {
 				panic("chem: name " + n + " names two acids")
@@ -313,6 +321,14 @@ func (c *Catalogue) Acids() []*FattyAcid {
 		return out[i].Carbons < out[j].Carbons
 	})
 	return out
+}
+
+// Chains returns the entries with the given number of carbons and double
+// bonds, hydroxy acids left out and branched ones included, in catalogue
+// order (the order of Acids within one C:D). The slice is shared and must
+// not be modified.
+func (c *Catalogue) Chains(carbons, doubleBonds int) []*FattyAcid {
+	return c.chains[[2]int{carbons, doubleBonds}]
 }
 
 // ByID returns the acid with the given canonical ID (case-insensitive).

@@ -52,3 +52,21 @@ func TestStructureFlags(t *testing.T) {
 	c, h, o := mustAcid(t, cat, "ricinoleic").Formula()
 	require.Equal(t, [3]int{18, 34, 3}, [3]int{c, h, o}) // C18H34O3
 }
+
+// TestChainsFollowAcidsOrder: Chains gives, for every C:D, exactly the
+// non-hydroxy entries of Acids with that structure, in the same order.
+func TestChainsFollowAcidsOrder(t *testing.T) {
+	cat := NewCatalogue()
+	want := map[[2]int][]*FattyAcid{}
+	for _, a := range cat.Acids() {
+		if a.HydroxyPosition == 0 {
+			k := [2]int{a.Carbons, a.DoubleBondCount}
+			want[k] = append(want[k], a)
+		}
+	}
+	require.NotEmpty(t, want)
+	for k, list := range want {
+		require.Equal(t, list, cat.Chains(k[0], k[1]), "%d:%d", k[0], k[1])
+	}
+	require.Empty(t, cat.Chains(18, 7))
+}

@@ -3,48 +3,20 @@ package hardening
 import (
 	"fmt"
 	"strings"
-	"sync"
 
 	"lipidsvc/chem"
 )
 
 // acidIndex finds acids in the catalogue by structure.
 type acidIndex struct {
-	cat    *chem.Catalogue
-	groups map[[2]int][]*chem.FattyAcid // (carbons, double bonds) → entries, catalogue order, no hydroxy acids
+	cat *chem.Catalogue
 }
 
-// acidIndexes memoises the index of each catalogue: a catalogue never
-// changes once built, and a service keeps one for its lifetime, so the
-// index is built once instead of once per forecast (a twentieth of a
-// forecast's time). Catalogues are few and long-lived; the memo keeps each
-// it has seen.
-var acidIndexes sync.Map // *chem.Catalogue → *acidIndex
-
-// newAcidIndex returns the catalogue's index, building it on first use.
-func newAcidIndex(cat *chem.Catalogue) *acidIndex {
-	if ix, ok := acidIndexes.Load(cat); ok {
-		return ix.(*acidIndex)
-	}
-	ix, _ := acidIndexes.LoadOrStore(cat, buildAcidIndex(cat))
-	return ix.(*acidIndex)
-}
-
-func buildAcidIndex(cat *chem.Catalogue) *acidIndex {
-	ix := &acidIndex{cat: cat, groups: map[[2]int][]*chem.FattyAcid{}}
-	for _, a := range cat.Acids() {
-		if a.HydroxyPosition > 0 {
-			continue
-		}
-		k := [2]int{a.Carbons, a.DoubleBondCount}
-		ix.groups[k] = append(ix.groups[k], a)
-	}
-	return ix
-}
+func newAcidIndex(cat *chem.Catalogue) *acidIndex { return &acidIndex{cat: cat} }
 
 // saturated returns the saturated acid of the chain length.
 func (ix *acidIndex) saturated(carbons int) *chem.FattyAcid {
-	g := ix.groups[[2]int{carbons, 0}]
+	g := ix.cat.Chains(carbons, 0)
 	if len(g) == 0 {
 		return nil
 	}
@@ -59,7 +31,7 @@ func (ix *acidIndex) ladder(carbons, d int) *chem.FattyAcid {
 		return ix.saturated(carbons)
 	}
 	var first *chem.FattyAcid
-	for _, a := range ix.groups[[2]int{carbons, d}] {
+	for _, a := range ix.cat.Chains(carbons, d) {
 		if !a.AllCis() {
 			continue
 		}
@@ -76,7 +48,7 @@ func (ix *acidIndex) ladder(carbons, d int) *chem.FattyAcid {
 // lumpedTrans returns the "C:D t" entry (trans isomers, positions not
 // resolved), or nil when the catalogue has none for that chain.
 func (ix *acidIndex) lumpedTrans(carbons, d int) *chem.FattyAcid {
-	for _, a := range ix.groups[[2]int{carbons, d}] {
+	for _, a := range ix.cat.Chains(carbons, d) {
 		if a.LumpedGeometry == chem.Trans {
 			return a
 		}
