@@ -242,12 +242,10 @@ func ForecastOf(ctx context.Context, cat *chem.Catalogue, req ForecastRequest) (
 	states := make([][]float64, points)
 	taus[points-1], states[points-1] = tauFinal, append([]float64(nil), tr.x...)
 	states[0] = x0
-	ivEnd := tr.lastIV
-	tr.lastTau = 0
-	tr.lastIV, tr.lastSlope = net.iodineValueSlope(x0)
+	tr.beginPath()
 	for k := 1; k < points-1; k++ {
 		iv := feedIV + (finalIV-feedIV)*float64(k)/float64(points-1)
-		tau, err := tr.nextRoot(ctx, iv, tauFinal, ivEnd)
+		tau, err := tr.nextRoot(ctx, iv)
 		if err != nil {
 			return nil, err
 		}

@@ -31,6 +31,8 @@ type trajectory struct {
 		ok             bool
 		tau, iv, slope float64
 	}
+	// endTau and endIV are the end of the path (beginPath).
+	endTau, endIV float64
 	// evals counts network evaluations, for benchmarks and tests.
 	evals int
 }
@@ -38,7 +40,7 @@ type trajectory struct {
 func newTrajectory(net *network, x0 []float64) *trajectory {
 	tr := &trajectory{net: net, x0: x0, x: make([]float64, len(x0)), anchorX: x0}
 	tr.fromStart = net.newSeries(x0)
-	tr.fromAnchor = net.newSeries(x0)
+	tr.fromAnchor = tr.fromStart
 	tr.feedIV = net.iodineValue(x0)
 	return tr
 }
@@ -48,7 +50,21 @@ func newTrajectory(net *network, x0 []float64) *trajectory {
 func (tr *trajectory) anchor(tau float64, x []float64) {
 	tr.anchorTau = tau
 	tr.anchorX = append(tr.anchorX[:0:0], x...)
-	tr.fromAnchor.reset(tr.anchorX)
+	if tr.fromAnchor == tr.fromStart {
+		tr.fromAnchor = tr.net.newSeries(tr.anchorX)
+	} else {
+		tr.fromAnchor.reset(tr.anchorX)
+	}
+}
+
+// beginPath makes the point just solved (the trajectory's last
+// evaluation) the end of a path table and the feed its first point, for
+// nextRoot to walk from one to the other.
+func (tr *trajectory) beginPath() {
+	tr.endTau, tr.endIV = tr.lastTau, tr.lastIV
+	tr.lastTau = 0
+	tr.lastIV, tr.lastSlope = tr.net.iodineValueSlope(tr.x0)
+	tr.prior.ok = false
 }
 
 // ivAt returns the iodine value at path variable tau and its slope
@@ -67,14 +83,15 @@ func (tr *trajectory) ivAt(tau float64) (iv, slope float64) {
 
 // nextRoot finds the path variable of the next path point, at iodine value
 // target, between the point just solved (where the trajectory's last
-// evaluation is) and the end of the path at tauEnd, whose iodine value is
-// ivEnd. Both ends are known, so neither is evaluated again. The search
+// evaluation is) and the end of the path set by beginPath. Both ends are
+// known, so neither is evaluated again. The search
 // starts from τ(IV) extrapolated by the cubic Hermite polynomial through the
 // last two points, with their exact slopes dτ/dIV = 1/(dIV/dτ), whose error
 // falls with the fourth power of the spacing (off the single point just
 // solved, a Newton step, while there is only one); with evenly spaced path
 // points that start is usually within the tolerance after one Newton step.
-func (tr *trajectory) nextRoot(ctx context.Context, target, tauEnd, ivEnd float64) (float64, error) {
+func (tr *trajectory) nextRoot(ctx context.Context, target float64) (float64, error) {
+	tauEnd, ivEnd := tr.endTau, tr.endIV
 	lo, ivLo, slopeLo := tr.lastTau, tr.lastIV, tr.lastSlope
 	start := math.NaN()
 	if slopeLo < 0 {
