@@ -217,14 +217,29 @@ func PrefixError(err error, prefix ...any) error {
 }
 
 // PrefixWarnings returns the warnings with their paths under prefix; a
-// warning without a path stays without one.
+// warning without a path stays without one. The new paths share one
+// backing array (every request prefixes its profile's warnings, most of
+// them one per acid).
 func PrefixWarnings(ws []Warning, prefix ...any) []Warning {
 	out := make([]Warning, len(ws))
-	for i, w := range ws {
-		if len(w.Path) > 0 && len(prefix) > 0 {
-			w.Path = append(append(make([]any, 0, len(prefix)+len(w.Path)), prefix...), w.Path...)
+	copy(out, ws)
+	if len(prefix) == 0 {
+		return out
+	}
+	n := 0
+	for _, w := range ws {
+		if len(w.Path) > 0 {
+			n += len(prefix) + len(w.Path)
 		}
-		out[i] = w
+	}
+	buf := make([]any, 0, n)
+	for i, w := range ws {
+		if len(w.Path) == 0 {
+			continue
+		}
+		start := len(buf)
+		buf = append(append(buf, prefix...), w.Path...)
+		out[i].Path = buf[start:len(buf):len(buf)]
 	}
 	return out
 }

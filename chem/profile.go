@@ -146,33 +146,8 @@ func (c *Catalogue) ReadProfileAt(in *ProfileInput, path ...any) (*Profile, erro
 	if err != nil {
 		return nil, PrefixError(err, path...)
 	}
-	prefixOwnWarnings(p.Warnings, path)
+	p.Warnings = PrefixWarnings(p.Warnings, path...)
 	return p, nil
-}
-
-// prefixOwnWarnings is PrefixWarnings for warnings the caller owns (a
-// profile just read): paths are rewritten in place, all from one backing
-// array, since every request reads a profile and most carry a warning per
-// acid.
-func prefixOwnWarnings(ws []Warning, prefix []any) {
-	if len(prefix) == 0 {
-		return
-	}
-	n := 0
-	for _, w := range ws {
-		if len(w.Path) > 0 {
-			n += len(prefix) + len(w.Path)
-		}
-	}
-	buf := make([]any, 0, n)
-	for i, w := range ws {
-		if len(w.Path) == 0 {
-			continue
-		}
-		start := len(buf)
-		buf = append(append(buf, prefix...), w.Path...)
-		ws[i].Path = buf[start:len(buf):len(buf)]
-	}
 }
 
 // Warning records a normalisation or an assumption the calculation made, so

@@ -78,10 +78,6 @@ type builderScratch struct {
 
 var builderScratches = sync.Pool{New: func() any { return new(builderScratch) }}
 
-// maxRecycledSpecies bounds the kept-species list a scratch keeps (a
-// one-off fat with a hundred thousand species is left to the collector).
-const maxRecycledSpecies = 1 << 15
-
 // slotArray returns a zeroed array of poolBins slots.
 func (bd *builder) slotArray() []int32 {
 	if n := len(bd.sc.free); n > 0 {
@@ -106,7 +102,7 @@ func (bd *builder) release() {
 	sc.binSlots = bd.binSlots[:0]
 	sc.bins = bd.bins[:0]
 	sc.kept = nil
-	if cap(bd.kept) <= maxRecycledSpecies {
+	if cap(bd.kept) <= maxRecycledComponents {
 		sc.kept = bd.kept[:0]
 	}
 	bd.sc, bd.kept, bd.bins, bd.binSlots = nil, nil, nil, nil

@@ -237,9 +237,9 @@ func (m *Mixture) resetWorkspace(w *workspace) *workspace {
 // workspaces recycles the workspaces of melting curves.
 var workspaces = sync.Pool{New: func() any { return new(workspace) }}
 
-// maxRecycledComponents bounds the workspaces kept for reuse: one of a fat
-// solved without pooling (a hundred thousand species) is left to the
-// collector.
+// maxRecycledComponents bounds the working memory kept for reuse (the
+// workspaces here, the builders' species lists): that of a fat solved
+// without pooling (a hundred thousand species) is left to the collector.
 const maxRecycledComponents = 1 << 15
 
 func recycleWorkspace(w *workspace) {
