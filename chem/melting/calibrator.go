@@ -44,9 +44,13 @@ type calFat struct {
 }
 
 func newCalibrator(ctx context.Context, fats []LibraryFat) *calibrator {
-	c := &calibrator{ctx: ctx, fats: make([]calFat, len(fats))}
+	c := &calibrator{ctx: ctx, fats: make([]calFat, len(fats)), grid: make([][]float64, len(fats))}
 	for i, lf := range fats {
 		c.fats[i] = calFat{f: lf.Fat, m: lf.Measurements, w: lf.Fat.mixture.newWorkspace()}
+		c.grid[i] = make([]float64, scanShifts)
+		for k := range c.grid[i] {
+			c.grid[i][k] = math.NaN()
+		}
 	}
 	return c
 }
@@ -109,17 +113,8 @@ func (c *calibrator) fatSSE(i int, s float64) (float64, error) {
 // scanSSE is the sum of squared SFC errors at the k-th shift of the scan,
 // from the per-fat cache.
 func (c *calibrator) scanSSE(k int, only []int) (float64, error) {
-	if c.grid == nil {
-		c.grid = make([][]float64, len(c.fats))
-	}
 	var sum float64
 	for _, i := range c.indices(only) {
-		if c.grid[i] == nil {
-			c.grid[i] = make([]float64, scanShifts)
-			for j := range c.grid[i] {
-				c.grid[i][j] = math.NaN()
-			}
-		}
 		v := c.grid[i][k]
 		if math.IsNaN(v) {
 			var err error
