@@ -82,6 +82,7 @@ type Config struct {
 
 // DefaultConfig is the configuration with nothing set.
 func DefaultConfig() Config {
+	batch := api.DefaultBatchLimits()
 	return Config{
 		Addr:              ":8080",
 		MetricsAddr:       ":9090",
@@ -95,9 +96,9 @@ func DefaultConfig() Config {
 		DrainDelay:        5 * time.Second,
 		ShutdownTimeout:   15 * time.Second,
 
-		BatchMaxSamples:     api.DefaultBatchLimits().MaxSamples,
-		BatchBodyLimitBytes: api.DefaultBatchLimits().BodyLimitBytes,
-		BatchTimeout:        api.DefaultBatchLimits().Timeout,
+		BatchMaxSamples:     batch.MaxSamples,
+		BatchBodyLimitBytes: batch.BodyLimitBytes,
+		BatchTimeout:        batch.Timeout,
 
 		InFlight:       DefaultInFlightLimits(),
 		MaxBodyReads:   4 * runtime.GOMAXPROCS(0),
